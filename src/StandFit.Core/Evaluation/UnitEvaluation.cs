@@ -1,0 +1,62 @@
+using System.Collections.Immutable;
+using StandFit.Core.Diagnostics;
+using StandFit.Core.Fitting;
+using StandFit.Core.Ingest;
+using StandFit.Core.Judging;
+using StandFit.Core.Problems;
+using StandFit.Core.Recipes;
+using StandFit.Core.Uncertainty;
+
+namespace StandFit.Core.Evaluation;
+
+/// <summary>
+/// Everything decided about one unit: who it is, what recipe judged it, the fit with its error bars,
+/// the residual diagnostics and the verdict. A rejected unit has a <see cref="Problem"/> and may lack
+/// the rest.
+/// </summary>
+public sealed class UnitEvaluation
+{
+    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult? runs, Verdict verdict, Problem? problem)
+    {
+        SourceName = sourceName;
+        Identity = identity;
+        Recipe = recipe;
+        Sweep = sweep;
+        Fit = fit;
+        Parameters = parameters;
+        Runs = runs;
+        Verdict = verdict;
+        Problem = problem;
+    }
+
+    public string SourceName { get; }
+
+    public UnitIdentity? Identity { get; }
+
+    public Recipe? Recipe { get; }
+
+    public Sweep? Sweep { get; }
+
+    public FitResult? Fit { get; }
+
+    /// <summary>The parameters with their t-based intervals at the recipe's confidence (empty when rejected before the fit).</summary>
+    public ImmutableArray<ParameterEstimate> Parameters { get; }
+
+    public RunsTestResult? Runs { get; }
+
+    public Verdict Verdict { get; }
+
+    /// <summary>Why the unit was rejected, when it was.</summary>
+    public Problem? Problem { get; }
+
+    public Ruling Ruling => Verdict.Ruling;
+
+    public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
+
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, Verdict verdict) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, runs, verdict, null);
+
+    /// <summary>A unit that cannot be judged; whatever is known of it is kept.</summary>
+    public static UnitEvaluation Rejected(string sourceName, Problem problem, UnitIdentity? identity = null, Recipe? recipe = null, Sweep? sweep = null) =>
+        new(sourceName, identity, recipe, sweep, null, [], null, Verdict.Rejected(problem), problem);
+}

@@ -1,0 +1,217 @@
+using System.Globalization;
+using System.Runtime.InteropServices;
+using StandFit.Core.Problems;
+
+namespace StandFit.Core.Ingest;
+
+/// <summary>
+/// Turns a <see cref="SweepTable"/> into a <see cref="Sweep"/> with the recipe's column map:
+/// numbers in invariant culture (decimal point, optional exponent, no thousands separator),
+/// legs 'up'/'down', points put in acquisition order.
+/// </summary>
+public static class SweepAssembler
+{
+    /// <summary>The longest serial accepted.</summary>
+    public const int MaxSerialLength = 64;
+
+    private const NumberStyles NumberStyle = NumberStyles.Float;
+
+    public static Result<Sweep> Assemble(SweepTable table, ColumnMap columns)
+    {
+        var identity = ReadIdentity(table);
+        if (!identity.IsSuccess)
+        {
+            return Result<Sweep>.Failure(identity.Problems);
+        }
+
+        var stimulusIndex = Find(table, columns.Stimulus);
+        var outputIndex = Find(table, columns.Output);
+        var legIndex = columns.Leg is null ? -1 : Find(table, columns.Leg);
+        var orderIndex = columns.Order is null ? -1 : Find(table, columns.Order);
+        if (stimulusIndex < 0)
+        {
+            return Missing(table, "stimulus", columns.Stimulus);
+        }
+
+        if (outputIndex < 0)
+        {
+            return Missing(table, "output", columns.Output);
+        }
+
+        if (columns.Leg is not null && legIndex < 0)
+        {
+            return Missing(table, "leg", columns.Leg);
+        }
+
+        if (columns.Order is not null && orderIndex < 0)
+        {
+            return Missing(table, "order", columns.Order);
+        }
+
+        var n = table.Rows.Length;
+        var stimulus = new double[n];
+        var output = new double[n];
+        var legs = new Leg[n];
+        var lines = new int[n];
+        var order = orderIndex >= 0 ? new double[n] : null;
+        for (var i = 0; i < n; i++)
+        {
+            var row = table.Rows[i];
+            lines[i] = row.Line;
+            if (Number(table, row, stimulusIndex, out stimulus[i]) is { } p1)
+            {
+                return p1;
+            }
+
+            if (Number(table, row, outputIndex, out output[i]) is { } p2)
+            {
+                return p2;
+            }
+
+            if (order is not null && Number(table, row, orderIndex, out order[i]) is { } p3)
+            {
+                return p3;
+            }
+
+            if (legIndex >= 0)
+            {
+                var cell = row.Cells[legIndex];
+                if (cell.Equals("up", StringComparison.OrdinalIgnoreCase))
+                {
+                    legs[i] = Leg.Up;
+                }
+                else if (cell.Equals("down", StringComparison.OrdinalIgnoreCase))
+                {
+                    legs[i] = Leg.Down;
+                }
+                else
+                {
+                    return Cell(table, row, legIndex, ReasonCodes.InputBadLeg, Messages.BadLeg(table.Header[legIndex], Shown(cell)));
+                }
+            }
+        }
+
+        if (order is not null)
+        {
+            var permutation = Enumerable.Range(0, n).ToArray();
+            Array.Sort(permutation, (a, b) => order[a] != order[b] ? order[a].CompareTo(order[b]) : a.CompareTo(b));
+            stimulus = [.. permutation.Select(k => stimulus[k])];
+            output = [.. permutation.Select(k => output[k])];
+            legs = [.. permutation.Select(k => legs[k])];
+            lines = [.. permutation.Select(k => lines[k])];
+        }
+
+        return new Sweep(
+            identity.Value,
+            ImmutableCollectionsMarshal.AsImmutableArray(stimulus),
+            ImmutableCollectionsMarshal.AsImmutableArray(output),
+            ImmutableCollectionsMarshal.AsImmutableArray(legs),
+            ImmutableCollectionsMarshal.AsImmutableArray(lines),
+            table.Metadata);
+    }
+
+    /// <summary>Serial (from metadata, else the file name without extension), part, station and test start.</summary>
+    public static Result<UnitIdentity> ReadIdentity(SweepTable table)
+    {
+        var serialEntry = table.Metadata.FirstOrDefault(m => m.Key == MetadataKeys.Serial);
+        var serial = serialEntry?.Value ?? Path.GetFileNameWithoutExtension(table.SourceName);
+        var serialLine = serialEntry?.Line ?? 0;
+        if (serial.Length == 0)
+        {
+            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.MissingSerial(), SourceLocation.At(table.SourceName, serialLine));
+        }
+
+        if (!IsSafeSerial(serial))
+        {
+            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.BadSerial(Shown(serial)), SourceLocation.At(table.SourceName, serialLine));
+        }
+
+        DateTime? testStart = null;
+        var startEntry = table.Metadata.FirstOrDefault(m => m.Key == MetadataKeys.TestStart);
+        if (startEntry is not null)
+        {
+            if (!DateTimeOffset.TryParse(startEntry.Value, CultureInfo.InvariantCulture, DateTimeStyles.AssumeUniversal, out var parsed))
+            {
+                return new Problem(ReasonCodes.InputBadMetadata.Code, Messages.BadTestStart(Shown(startEntry.Value)), SourceLocation.At(table.SourceName, startEntry.Line));
+            }
+
+            testStart = parsed.UtcDateTime;
+        }
+
+        return new UnitIdentity(serial, table.Meta(MetadataKeys.Part), table.Meta(MetadataKeys.Station), testStart);
+    }
+
+    /// <summary>A serial may be used in file names and log lines: no separators, no control characters.</summary>
+    public static bool IsSafeSerial(string serial)
+    {
+        if (serial.Length is 0 or > MaxSerialLength || serial is "." or "..")
+        {
+            return false;
+        }
+
+        foreach (var c in serial)
+        {
+            if (char.IsControl(c) || c is '/' or '\\' or ':' or '*' or '?' or '"' or '<' or '>' or '|' || char.IsSurrogate(c))
+            {
+                return false;
+            }
+        }
+
+        return true;
+    }
+
+    /// <summary>A user's text cut to a safe length with control characters made visible, for messages.</summary>
+    public static string Shown(string text)
+    {
+        var cut = text.Length > 40 ? text[..40] + "..." : text;
+        var builder = new System.Text.StringBuilder(cut.Length);
+        foreach (var c in cut)
+        {
+            if (char.IsControl(c))
+            {
+                builder.Append(CultureInfo.InvariantCulture, $"\\u{(int)c:x4}");
+            }
+            else
+            {
+                builder.Append(c);
+            }
+        }
+
+        return builder.ToString();
+    }
+
+    private static int Find(SweepTable table, string name)
+    {
+        for (var i = 0; i < table.Header.Length; i++)
+        {
+            if (string.Equals(table.Header[i], name, StringComparison.OrdinalIgnoreCase))
+            {
+                return i;
+            }
+        }
+
+        return -1;
+    }
+
+    private static Problem? Number(SweepTable table, TableRow row, int column, out double value)
+    {
+        var cell = row.Cells[column];
+        if (!double.TryParse(cell, NumberStyle, CultureInfo.InvariantCulture, out value))
+        {
+            return Cell(table, row, column, ReasonCodes.InputBadNumber, Messages.BadNumber(table.Header[column], Shown(cell)));
+        }
+
+        if (!double.IsFinite(value))
+        {
+            return Cell(table, row, column, ReasonCodes.InputNonFinite, Messages.NonFinite(table.Header[column], Shown(cell)));
+        }
+
+        return null;
+    }
+
+    private static Problem Cell(SweepTable table, TableRow row, int column, ReasonCode code, string message) =>
+        new(code.Code, message, SourceLocation.At(table.SourceName, row.Line, column + 1));
+
+    private static Result<Sweep> Missing(SweepTable table, string role, string name) =>
+        new Problem(ReasonCodes.InputMissingColumn.Code, Messages.MissingColumn(role, name, table.Header), SourceLocation.At(table.SourceName, table.HeaderLine));
+}

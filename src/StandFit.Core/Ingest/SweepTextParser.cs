@@ -1,0 +1,162 @@
+using System.Collections.Immutable;
+using StandFit.Core.Problems;
+
+namespace StandFit.Core.Ingest;
+
+/// <summary>
+/// Splits the text of a sweep file into a <see cref="SweepTable"/>: leading <c># key: value</c>
+/// metadata lines (a <c>#</c> line without a colon is a comment), one header row of column names,
+/// then comma-separated rows. Accepts LF and CRLF, skips blank lines (trailing ones included).
+/// A byte-order mark must already be gone (the reader strips it).
+/// </summary>
+public static class SweepTextParser
+{
+    /// <summary>The longest line accepted, in characters.</summary>
+    public const int MaxLineLength = 16 * 1024;
+
+    public static Result<SweepTable> Parse(string sourceName, string text)
+    {
+        var metadata = ImmutableArray.CreateBuilder<MetadataEntry>();
+        var rows = ImmutableArray.CreateBuilder<TableRow>();
+        ImmutableArray<string> header = default;
+        var headerLine = 0;
+        var lineNumber = 0;
+        var position = 0;
+        var anyContent = false;
+
+        while (position < text.Length)
+        {
+            var end = text.IndexOf('\n', position);
+            if (end < 0)
+            {
+                end = text.Length;
+            }
+
+            var line = text.AsSpan(position, end - position);
+            position = end + 1;
+            lineNumber++;
+            if (line.Length > 0 && line[^1] == '\r')
+            {
+                line = line[..^1];
+            }
+
+            if (line.Length > MaxLineLength)
+            {
+                return Fail(ReasonCodes.InputLineTooLong, Messages.LineTooLong(line.Length, MaxLineLength), sourceName, lineNumber);
+            }
+
+            if (line.IsWhiteSpace())
+            {
+                continue;
+            }
+
+            anyContent = true;
+            if (header.IsDefault)
+            {
+                if (line[0] == '#')
+                {
+                    var problem = ReadMetadata(line[1..], sourceName, lineNumber, metadata);
+                    if (problem is not null)
+                    {
+                        return problem;
+                    }
+
+                    continue;
+                }
+
+                var names = SplitCells(line);
+                for (var i = 0; i < names.Length; i++)
+                {
+                    if (names[i].Length == 0)
+                    {
+                        return Fail(ReasonCodes.InputNoHeader, Messages.EmptyColumnName(i + 1), sourceName, lineNumber, i + 1);
+                    }
+
+                    for (var j = 0; j < i; j++)
+                    {
+                        if (string.Equals(names[i], names[j], StringComparison.OrdinalIgnoreCase))
+                        {
+                            return Fail(ReasonCodes.InputDuplicateColumn, Messages.DuplicateColumn(names[i], j + 1), sourceName, lineNumber, i + 1);
+                        }
+                    }
+                }
+
+                header = names;
+                headerLine = lineNumber;
+                continue;
+            }
+
+            var cells = SplitCells(line);
+            if (cells.Length != header.Length)
+            {
+                return Fail(ReasonCodes.InputWrongColumnCount, Messages.WrongColumnCount(cells.Length, header.Length), sourceName, lineNumber);
+            }
+
+            rows.Add(new TableRow(lineNumber, cells));
+        }
+
+        if (!anyContent)
+        {
+            return Fail(ReasonCodes.InputEmpty, Messages.EmptyFile(), sourceName, 0);
+        }
+
+        if (header.IsDefault)
+        {
+            return Fail(ReasonCodes.InputNoHeader, Messages.NoHeader(), sourceName, lineNumber);
+        }
+
+        if (rows.Count == 0)
+        {
+            return Fail(ReasonCodes.InputNoRows, Messages.NoRows(), sourceName, headerLine);
+        }
+
+        return new SweepTable(sourceName, metadata.ToImmutable(), header, headerLine, rows.ToImmutable());
+    }
+
+    private static Problem? ReadMetadata(ReadOnlySpan<char> body, string sourceName, int lineNumber, ImmutableArray<MetadataEntry>.Builder metadata)
+    {
+        var colon = body.IndexOf(':');
+        if (colon < 0)
+        {
+            return null; // a comment
+        }
+
+        var key = MetadataKeys.Normalise(body[..colon].ToString());
+        if (key.Length == 0)
+        {
+            return Problem(ReasonCodes.InputBadMetadata, Messages.BadMetadataLine(), sourceName, lineNumber, 1);
+        }
+
+        var value = body[(colon + 1)..].Trim().ToString();
+        foreach (var earlier in metadata)
+        {
+            if (earlier.Key == key)
+            {
+                return earlier.Value == value
+                    ? null
+                    : Problem(ReasonCodes.InputDuplicateMetadata, Messages.DuplicateMetadata(key, earlier.Line), sourceName, lineNumber, 1);
+            }
+        }
+
+        metadata.Add(new MetadataEntry(key, value, lineNumber));
+        return null;
+    }
+
+    private static ImmutableArray<string> SplitCells(ReadOnlySpan<char> line)
+    {
+        var count = line.Count(',') + 1;
+        var cells = ImmutableArray.CreateBuilder<string>(count);
+        foreach (var range in line.Split(','))
+        {
+            cells.Add(line[range].Trim().ToString());
+        }
+
+        return cells.MoveToImmutable();
+    }
+
+    private static Problem Problem(ReasonCode code, string message, string file, int line, int column = 0) =>
+        new(code.Code, message, SourceLocation.At(file, line, column));
+
+    private static Result<SweepTable> Fail(ReasonCode code, string message, string file, int line, int column = 0) =>
+        Problem(code, message, file, line, column);
+}

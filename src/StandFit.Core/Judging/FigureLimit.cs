@@ -1,0 +1,32 @@
+namespace StandFit.Core.Judging;
+
+/// <summary>
+/// Specification limits on one figure (a parameter such as gain or offset), in the figure's own
+/// units. Either bound may be open. Limits are inclusive: a value on a limit conforms.
+/// </summary>
+public sealed record FigureLimit
+{
+    public FigureLimit(string figure, double? min, double? max)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(figure);
+        if (min is null && max is null)
+        {
+            throw new ArgumentException("A limit needs a min, a max or both.");
+        }
+
+        if (min is { } lo && max is { } hi && lo > hi)
+        {
+            throw new ArgumentException("A limit's min must not be above its max.");
+        }
+
+        Figure = figure;
+        Min = min;
+        Max = max;
+    }
+
+    public string Figure { get; }
+
+    public double? Min { get; }
+
+    public double? Max { get; }
+}

@@ -1,0 +1,86 @@
+using System.Collections.Immutable;
+
+namespace StandFit.Core.Problems;
+
+/// <summary>What a reason does to a ruling.</summary>
+public enum ReasonKind
+{
+    /// <summary>The input could not be judged: the unit is rejected.</summary>
+    Reject,
+
+    /// <summary>The unit is outside specification.</summary>
+    Fail,
+
+    /// <summary>The measurement cannot decide: test the unit again.</summary>
+    Retest,
+
+    /// <summary>A check that passed, recorded for the audit trail.</summary>
+    Pass,
+}
+
+/// <summary>One stable reason identifier and what it means. Codes never change once shipped.</summary>
+public sealed record ReasonCode(string Code, ReasonKind Kind, string Meaning);
+
+/// <summary>
+/// Every reason code the tool writes, in one place. Limit codes are prefixed by the figure they judge
+/// (<c>gain.above_limit</c>, <c>offset.straddles_limit</c>); the registry holds them with the
+/// placeholder <c>{figure}</c>. docs/reasons.md is checked against this list by a test.
+/// </summary>
+public static class ReasonCodes
+{
+    public const string FigurePlaceholder = "{figure}";
+
+    // Input that cannot be judged.
+    public static readonly ReasonCode InputEmpty = new("input.empty", ReasonKind.Reject, "The file holds no bytes, or only blank lines.");
+    public static readonly ReasonCode InputBinary = new("input.binary", ReasonKind.Reject, "The file holds bytes that are not text (NUL or other control bytes).");
+    public static readonly ReasonCode InputEncoding = new("input.encoding", ReasonKind.Reject, "The file is not valid UTF-8 (for example UTF-16 or a legacy code page).");
+    public static readonly ReasonCode InputTooLarge = new("input.too_large", ReasonKind.Reject, "The file is larger than the configured size limit.");
+    public static readonly ReasonCode InputLineTooLong = new("input.line_too_long", ReasonKind.Reject, "A line is longer than the reader accepts.");
+    public static readonly ReasonCode InputBadMetadata = new("input.bad_metadata", ReasonKind.Reject, "A metadata line is not of the form '# key: value'.");
+    public static readonly ReasonCode InputDuplicateMetadata = new("input.duplicate_metadata", ReasonKind.Reject, "A metadata key appears twice with different values.");
+    public static readonly ReasonCode InputBadSerial = new("input.bad_serial", ReasonKind.Reject, "The serial is missing, too long, or holds path separators or control characters.");
+    public static readonly ReasonCode InputNoHeader = new("input.no_header", ReasonKind.Reject, "There is no header row of column names.");
+    public static readonly ReasonCode InputDuplicateColumn = new("input.duplicate_column", ReasonKind.Reject, "Two columns of the header have the same name.");
+    public static readonly ReasonCode InputNoRows = new("input.no_rows", ReasonKind.Reject, "The header is followed by no data rows.");
+    public static readonly ReasonCode InputWrongColumnCount = new("input.wrong_column_count", ReasonKind.Reject, "A data row has more or fewer cells than the header.");
+    public static readonly ReasonCode InputMissingColumn = new("input.missing_column", ReasonKind.Reject, "A column the recipe names is not in the header.");
+    public static readonly ReasonCode InputBadNumber = new("input.bad_number", ReasonKind.Reject, "A cell that must hold a number does not.");
+    public static readonly ReasonCode InputNonFinite = new("input.non_finite", ReasonKind.Reject, "A cell holds NaN or an infinity.");
+    public static readonly ReasonCode InputBadLeg = new("input.bad_leg", ReasonKind.Reject, "A leg cell is neither 'up' nor 'down'.");
+    public static readonly ReasonCode InputNoRecipe = new("input.no_recipe", ReasonKind.Reject, "No recipe lists the unit's part.");
+
+    // Fits that cannot be made.
+    public static readonly ReasonCode FitTooFewPoints = new("fit.too_few_points", ReasonKind.Reject, "Fewer points than the model has parameters, or no degree of freedom left for an error bar.");
+    public static readonly ReasonCode FitZeroStimulusSpread = new("fit.zero_stimulus_spread", ReasonKind.Reject, "All stimulus values are equal: no curve can be fitted.");
+    public static readonly ReasonCode FitRankDeficient = new("fit.rank_deficient", ReasonKind.Reject, "The stimulus values cannot separate the model's parameters (too few distinct set points).");
+    public static readonly ReasonCode FitNonFinite = new("fit.non_finite", ReasonKind.Reject, "The fit produced a non-finite number.");
+
+    // A bug in the tool: the unit is rejected and the worker goes on.
+    public static readonly ReasonCode InternalError = new("internal.error", ReasonKind.Reject, "The tool failed on this unit; the operations log has the stack trace.");
+
+    // Limits on a figure (guarded acceptance).
+    public static readonly ReasonCode LimitWithin = new("{figure}.within_limits", ReasonKind.Pass, "The figure's whole confidence interval lies inside its limits.");
+    public static readonly ReasonCode LimitAbove = new("{figure}.above_limit", ReasonKind.Fail, "The figure's whole confidence interval lies above its upper limit.");
+    public static readonly ReasonCode LimitBelow = new("{figure}.below_limit", ReasonKind.Fail, "The figure's whole confidence interval lies below its lower limit.");
+    public static readonly ReasonCode LimitStraddles = new("{figure}.straddles_limit", ReasonKind.Retest, "The figure's confidence interval contains a limit: the measurement cannot decide.");
+
+    // Residual-structure gates.
+    public static readonly ReasonCode RunsOk = new("residuals.runs_ok", ReasonKind.Pass, "The runs test on the signs of the residuals in stimulus order finds no structure.");
+    public static readonly ReasonCode RunsNotApplicable = new("residuals.runs_not_applicable", ReasonKind.Pass, "The residuals have too few signs of each kind for a runs test (for example an exact fit); the gate does not judge.");
+    public static readonly ReasonCode RunsStructure = new("residuals.runs_structure", ReasonKind.Fail, "Too few (or too many) runs of residual signs in stimulus order: the model does not describe the unit.");
+
+    public static ImmutableArray<ReasonCode> All { get; } =
+    [
+        InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
+        InputDuplicateMetadata, InputBadSerial, InputNoHeader, InputDuplicateColumn, InputNoRows,
+        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputNoRecipe,
+        FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitNonFinite,
+        InternalError,
+        LimitWithin, LimitAbove, LimitBelow, LimitStraddles,
+        RunsOk, RunsNotApplicable, RunsStructure,
+    ];
+
+    /// <summary>The concrete code of a figure's limit reason: <c>gain.above_limit</c>.</summary>
+    public static string ForFigure(ReasonCode template, string figure) =>
+        template.Code.Replace(FigurePlaceholder, figure, StringComparison.Ordinal);
+}

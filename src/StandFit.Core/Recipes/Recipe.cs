@@ -1,0 +1,103 @@
+using System.Collections.Immutable;
+using StandFit.Core.Fitting;
+using StandFit.Core.Ingest;
+using StandFit.Core.Judging;
+using StandFit.Core.Uncertainty;
+
+namespace StandFit.Core.Recipes;
+
+/// <summary>Units of the stimulus and output columns, as the recipe states them (free text, e.g. "kPa", "mV").</summary>
+public sealed record ColumnUnits(string Stimulus, string Output)
+{
+    public static ColumnUnits None { get; } = new("", "");
+
+    /// <summary>The unit of a polynomial coefficient of the given power: output / stimulus^power.</summary>
+    public string OfPower(int power) => power switch
+    {
+        _ when Output.Length == 0 && Stimulus.Length == 0 => "",
+        0 => Output,
+        1 => $"{Output}/{Stimulus}",
+        _ => $"{Output}/{Stimulus}^{power.ToString(System.Globalization.CultureInfo.InvariantCulture)}",
+    };
+}
+
+/// <summary>
+/// How one part family is fitted and judged: the immutable form the core works with. The recipe
+/// files (YAML) are read into this by the edge that loads them.
+/// </summary>
+public sealed class Recipe
+{
+    public Recipe(
+        string name,
+        string version,
+        ImmutableArray<string> parts,
+        ColumnMap columns,
+        ColumnUnits units,
+        LinearModel model,
+        ConfidenceLevel confidence,
+        ImmutableArray<FigureLimit> limits,
+        RunsGate? runsGate,
+        string contentHash,
+        string sourceFile)
+    {
+        ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        foreach (var limit in limits)
+        {
+            if (model.ParameterNames.IndexOf(limit.Figure) < 0)
+            {
+                throw new ArgumentException($"Model {model.Name} has no figure '{limit.Figure}'.", nameof(limits));
+            }
+        }
+
+        Name = name;
+        Version = version;
+        Parts = parts;
+        Columns = columns;
+        Units = units;
+        Model = model;
+        Confidence = confidence;
+        Limits = limits;
+        RunsGate = runsGate;
+        ContentHash = contentHash;
+        SourceFile = sourceFile;
+    }
+
+    public string Name { get; }
+
+    /// <summary>The recipe's own version text, as its author wrote it.</summary>
+    public string Version { get; }
+
+    /// <summary>Part numbers this recipe judges (matched against the sweep's <c>part</c> metadata).</summary>
+    public ImmutableArray<string> Parts { get; }
+
+    public ColumnMap Columns { get; }
+
+    public ColumnUnits Units { get; }
+
+    public LinearModel Model { get; }
+
+    public ConfidenceLevel Confidence { get; }
+
+    public ImmutableArray<FigureLimit> Limits { get; }
+
+    public RunsGate? RunsGate { get; }
+
+    /// <summary>SHA-256 of the recipe file's bytes, lower-case hex: which exact recipe made a ruling.</summary>
+    public string ContentHash { get; }
+
+    /// <summary>The recipe file's name (no folder).</summary>
+    public string SourceFile { get; }
+
+    /// <summary>The unit of a parameter of the model.</summary>
+    public string UnitOf(string parameter)
+    {
+        var index = Model.ParameterNames.IndexOf(parameter);
+        if (index < 0)
+        {
+            return "";
+        }
+
+        var lowest = Model.HasIntercept ? 0 : 1;
+        return Units.OfPower(index + lowest);
+    }
+}

@@ -1,0 +1,101 @@
+using System.Globalization;
+using System.Text;
+
+namespace StandFit.Edges.Outputs;
+
+/// <summary>
+/// The pass/fail log, <c>output/passfail/passfail-YYYY-MM-DD.log</c> (by processing date, UTC): one
+/// line per unit, appended and flushed to disk before the unit's input is archived.
+/// Line format (docs/outputs.md): <c>time RULING serial=.. part=.. station=.. file=.. recipe=..@..
+/// reasons=a,b key=..</c>. Values are quoted and escaped when they hold anything but plain
+/// characters, so no metadata can break a line.
+/// </summary>
+public sealed class PassFailLog : IAuditSink
+{
+    private readonly string _folder;
+
+    public PassFailLog(string outputFolder) => _folder = Path.Combine(outputFolder, "passfail");
+
+    public void Append(IReadOnlyList<SummaryRecord> records)
+    {
+        if (records.Count == 0)
+        {
+            return;
+        }
+
+        try
+        {
+            Directory.CreateDirectory(_folder);
+            foreach (var day in records.GroupBy(r => r.ProcessedAt.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)))
+            {
+                var text = new StringBuilder();
+                foreach (var record in day)
+                {
+                    text.Append(FormatLine(record)).Append('\n');
+                }
+
+                var path = Path.Combine(_folder, $"passfail-{day.Key}.log");
+                using var stream = new FileStream(path, FileMode.Append, FileAccess.Write, FileShare.Read);
+                var bytes = Encoding.UTF8.GetBytes(text.ToString());
+                stream.Write(bytes);
+                stream.Flush(flushToDisk: true);
+            }
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            throw new AuditSinkException($"The pass/fail log in {_folder} cannot be written: {e.Message}", e);
+        }
+    }
+
+    public static string FormatLine(SummaryRecord r)
+    {
+        var line = new StringBuilder(256);
+        line.Append(r.ProcessedAt.ToString("yyyy-MM-dd'T'HH:mm:ss.fff'Z'", CultureInfo.InvariantCulture));
+        line.Append(' ').Append(r.Ruling.ToUpperInvariant().PadRight(8));
+        Field(line, "serial", r.Serial);
+        Field(line, "part", r.Part);
+        Field(line, "station", r.Station);
+        Field(line, "file", r.SourceFile);
+        Field(line, "recipe", r.RecipeName is null ? null : $"{r.RecipeName}@{r.RecipeVersion}");
+        Field(line, "reasons", string.Join(',', r.ReasonCodes));
+        Field(line, "key", r.UnitKey);
+        return line.ToString();
+    }
+
+    /// <summary>A value as it appears in a line: bare when plain, otherwise quoted with \" \\ and \uXXXX escapes.</summary>
+    public static string Escape(string? value)
+    {
+        if (value is null)
+        {
+            return "-";
+        }
+
+        if (value.Length > 0 && value.All(IsPlain))
+        {
+            return value;
+        }
+
+        var quoted = new StringBuilder(value.Length + 2).Append('"');
+        foreach (var c in value)
+        {
+            if (c is '"' or '\\')
+            {
+                quoted.Append('\\').Append(c);
+            }
+            else if (char.IsControl(c) || char.IsSurrogate(c) || c is '\u2028' or '\u2029' or '\u0085')
+            {
+                quoted.Append(CultureInfo.InvariantCulture, $"\\u{(int)c:x4}");
+            }
+            else
+            {
+                quoted.Append(c);
+            }
+        }
+
+        return quoted.Append('"').ToString();
+    }
+
+    private static bool IsPlain(char c) => char.IsAsciiLetterOrDigit(c) || c is '.' or '_' or '-' or ':' or '@' or '/' or '+' or ',';
+
+    private static void Field(StringBuilder line, string key, string? value) => line.Append(' ').Append(key).Append('=').Append(Escape(value));
+}

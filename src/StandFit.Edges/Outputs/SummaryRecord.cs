@@ -1,0 +1,176 @@
+using System.Text.Json.Serialization;
+using Parquet.Serialization.Attributes;
+
+namespace StandFit.Edges.Outputs;
+
+/// <summary>One parameter of a unit's fit, as a struct inside the summary row's <c>parameters</c> list.</summary>
+public sealed class ParameterRecord
+{
+    [JsonPropertyName("name")]
+    [ParquetRequired]
+    public string Name { get; set; } = "";
+
+    [JsonPropertyName("unit")]
+    public string? Unit { get; set; }
+
+    [JsonPropertyName("estimate")]
+    public double Estimate { get; set; }
+
+    [JsonPropertyName("se")]
+    public double StandardError { get; set; }
+
+    [JsonPropertyName("ci_low")]
+    public double CiLow { get; set; }
+
+    [JsonPropertyName("ci_high")]
+    public double CiHigh { get; set; }
+
+    [JsonPropertyName("t")]
+    public double T { get; set; }
+
+    [JsonPropertyName("p")]
+    public double P { get; set; }
+}
+
+/// <summary>
+/// One row of the summary table (output/summaries/date=YYYY-MM-DD/*.parquet): one unit, its
+/// identity, the recipe that judged it, the fit and the ruling. docs/outputs.md documents every
+/// column; an approval test pins the schema. Timestamps are UTC, INT64 milliseconds.
+/// </summary>
+public sealed class SummaryRecord
+{
+    /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
+    public const int CurrentSchemaVersion = 1;
+
+    [JsonPropertyName("schema_version")]
+    public int SchemaVersion { get; set; } = CurrentSchemaVersion;
+
+    /// <summary>Content SHA-256 of the sweep file and the recipe's hash: the unit's row key.</summary>
+    [JsonPropertyName("unit_key")]
+    [ParquetRequired]
+    public string UnitKey { get; set; } = "";
+
+    [JsonPropertyName("serial")]
+    public string? Serial { get; set; }
+
+    [JsonPropertyName("part")]
+    public string? Part { get; set; }
+
+    [JsonPropertyName("station")]
+    public string? Station { get; set; }
+
+    [JsonPropertyName("test_start")]
+    [ParquetTimestamp(ParquetTimestampResolution.Milliseconds, useLogicalTimestamp: true, isAdjustedToUTC: true)]
+    public DateTime? TestStart { get; set; }
+
+    [JsonPropertyName("source_file")]
+    [ParquetRequired]
+    public string SourceFile { get; set; } = "";
+
+    [JsonPropertyName("source_sha256")]
+    [ParquetRequired]
+    public string SourceSha256 { get; set; } = "";
+
+    [JsonPropertyName("recipe_name")]
+    public string? RecipeName { get; set; }
+
+    [JsonPropertyName("recipe_version")]
+    public string? RecipeVersion { get; set; }
+
+    [JsonPropertyName("recipe_hash")]
+    public string? RecipeHash { get; set; }
+
+    [JsonPropertyName("model")]
+    public string? Model { get; set; }
+
+    [JsonPropertyName("confidence")]
+    public double? Confidence { get; set; }
+
+    [JsonPropertyName("n_points")]
+    public int? Points { get; set; }
+
+    [JsonPropertyName("df")]
+    public int? DegreesOfFreedom { get; set; }
+
+    [JsonPropertyName("parameters")]
+    public List<ParameterRecord> Parameters { get; set; } = [];
+
+    [JsonPropertyName("offset_estimate")]
+    public double? OffsetEstimate { get; set; }
+
+    [JsonPropertyName("offset_se")]
+    public double? OffsetSe { get; set; }
+
+    [JsonPropertyName("offset_ci_low")]
+    public double? OffsetCiLow { get; set; }
+
+    [JsonPropertyName("offset_ci_high")]
+    public double? OffsetCiHigh { get; set; }
+
+    [JsonPropertyName("offset_t")]
+    public double? OffsetT { get; set; }
+
+    [JsonPropertyName("offset_p")]
+    public double? OffsetP { get; set; }
+
+    [JsonPropertyName("gain_estimate")]
+    public double? GainEstimate { get; set; }
+
+    [JsonPropertyName("gain_se")]
+    public double? GainSe { get; set; }
+
+    [JsonPropertyName("gain_ci_low")]
+    public double? GainCiLow { get; set; }
+
+    [JsonPropertyName("gain_ci_high")]
+    public double? GainCiHigh { get; set; }
+
+    [JsonPropertyName("gain_t")]
+    public double? GainT { get; set; }
+
+    [JsonPropertyName("gain_p")]
+    public double? GainP { get; set; }
+
+    [JsonPropertyName("residual_sd")]
+    public double? ResidualSd { get; set; }
+
+    [JsonPropertyName("r_squared")]
+    public double? RSquared { get; set; }
+
+    [JsonPropertyName("adj_r_squared")]
+    public double? AdjustedRSquared { get; set; }
+
+    [JsonPropertyName("condition_number")]
+    public double? ConditionNumber { get; set; }
+
+    [JsonPropertyName("runs_count")]
+    public int? RunsCount { get; set; }
+
+    [JsonPropertyName("runs_z")]
+    public double? RunsZ { get; set; }
+
+    [JsonPropertyName("runs_p")]
+    public double? RunsP { get; set; }
+
+    [JsonPropertyName("runs_method")]
+    public string? RunsMethod { get; set; }
+
+    /// <summary>pass, fail, retest or rejected.</summary>
+    [JsonPropertyName("ruling")]
+    [ParquetRequired]
+    public string Ruling { get; set; } = "";
+
+    [JsonPropertyName("reason_codes")]
+    public List<string> ReasonCodes { get; set; } = [];
+
+    [JsonPropertyName("reasons")]
+    public List<string> Reasons { get; set; } = [];
+
+    [JsonPropertyName("processed_at")]
+    [ParquetTimestamp(ParquetTimestampResolution.Milliseconds, useLogicalTimestamp: true, isAdjustedToUTC: true)]
+    public DateTime ProcessedAt { get; set; }
+
+    [JsonPropertyName("tool_version")]
+    [ParquetRequired]
+    public string ToolVersion { get; set; } = "";
+}

@@ -1,0 +1,44 @@
+using StandFit.Core.Judging;
+
+namespace StandFit.Edges.Processing;
+
+/// <summary>Counts of rulings, added up as units are published.</summary>
+public sealed class BatchCounts
+{
+    public int Processed { get; private set; }
+
+    public int Passed { get; private set; }
+
+    public int Failed { get; private set; }
+
+    public int Retest { get; private set; }
+
+    public int Rejected { get; private set; }
+
+    /// <summary>Inputs that could not be read at all (vanished, locked) and were left for a later try.</summary>
+    public int Skipped { get; private set; }
+
+    public void Add(Ruling ruling)
+    {
+        Processed++;
+        switch (ruling)
+        {
+            case Ruling.Pass: Passed++; break;
+            case Ruling.Fail: Failed++; break;
+            case Ruling.Retest: Retest++; break;
+            default: Rejected++; break;
+        }
+    }
+
+    public void AddSkipped() => Skipped++;
+
+    public void Add(BatchCounts other)
+    {
+        Processed += other.Processed;
+        Passed += other.Passed;
+        Failed += other.Failed;
+        Retest += other.Retest;
+        Rejected += other.Rejected;
+        Skipped += other.Skipped;
+    }
+}
