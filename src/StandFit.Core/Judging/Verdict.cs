@@ -42,7 +42,7 @@ public sealed record Verdict(Ruling Ruling, ImmutableArray<Finding> Reasons)
     }
 
     public static Verdict Rejected(Problem problem) =>
-        new(Ruling.Rejected, [new Finding(problem.Code, ReasonKind.Reject, problem.ToString())]);
+        new(Ruling.Rejected, [new Finding(problem.Code, ReasonKind.Reject, $"{problem.Location}: {problem.Message}")]);
 
     private static int Severity(ReasonKind kind) => kind switch
     {

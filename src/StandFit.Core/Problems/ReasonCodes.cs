@@ -80,6 +80,27 @@ public static class ReasonCodes
         RunsOk, RunsNotApplicable, RunsStructure,
     ];
 
+    /// <summary>The registry entry of a concrete code (<c>gain.above_limit</c> finds <c>{figure}.above_limit</c>), or null.</summary>
+    public static ReasonCode? Find(string code)
+    {
+        foreach (var entry in All)
+        {
+            if (entry.Code == code)
+            {
+                return entry;
+            }
+
+            if (entry.Code.StartsWith(FigurePlaceholder, StringComparison.Ordinal)
+                && code.Length > entry.Code.Length - FigurePlaceholder.Length
+                && code.EndsWith(entry.Code[FigurePlaceholder.Length..], StringComparison.Ordinal))
+            {
+                return entry;
+            }
+        }
+
+        return null;
+    }
+
     /// <summary>The concrete code of a figure's limit reason: <c>gain.above_limit</c>.</summary>
     public static string ForFigure(ReasonCode template, string figure) =>
         template.Code.Replace(FigurePlaceholder, figure, StringComparison.Ordinal);

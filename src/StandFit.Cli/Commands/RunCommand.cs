@@ -1,0 +1,91 @@
+using System.Diagnostics;
+using Serilog.Events;
+using Serilog.Extensions.Logging;
+using StandFit.Edges.Folders;
+using StandFit.Edges.Logging;
+using StandFit.Edges.Outputs;
+using StandFit.Edges.Processing;
+
+namespace StandFit.Cli.Commands;
+
+/// <summary><c>standfit run</c>: process every ready file once, then exit.</summary>
+internal static class RunCommand
+{
+    public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
+    {
+        var (parsed, problem) = Arguments.Parse(args, ["--config", "--from"], ["--quiet", "--help"]);
+        if (parsed is null || parsed.Positional.Count > 0)
+        {
+            error.WriteLine("standfit run: " + (problem ?? "unexpected argument " + parsed!.Positional[0]));
+            error.WriteLine(Help.Run);
+            return ExitCodes.Usage;
+        }
+
+        if (parsed.Has("--help"))
+        {
+            output.WriteLine(Help.Run);
+            return ExitCodes.Ok;
+        }
+
+        var from = parsed.Value("--from");
+        if (from is not null && !Directory.Exists(from))
+        {
+            error.WriteLine($"standfit run: --from folder '{from}' does not exist.");
+            return ExitCodes.Usage;
+        }
+
+        var options = Startup.LoadOptions(parsed.Value("--config"), error, needInbox: from is null);
+        if (options is null)
+        {
+            return ExitCodes.Configuration;
+        }
+
+        var quiet = parsed.Has("--quiet");
+        using var log = OperationsLog.Create(options.Logs, LogEventLevel.Error);
+        using var loggers = new SerilogLoggerFactory(log);
+        var logger = loggers.CreateLogger("StandFit");
+        var printer = new RulingPrinter(output, quiet);
+        var mode = from is null ? DispositionMode.Move : DispositionMode.Copy;
+        var pipeline = Pipeline.Build(options, loggers, mode, TimeProvider.System, printer.Print);
+        if (!pipeline.Catalog.IsValid)
+        {
+            Startup.Print(error, "recipe folder", pipeline.Catalog.Problems);
+            return ExitCodes.Configuration;
+        }
+
+        var folder = Path.GetFullPath(from ?? options.Inbox);
+        var inputs = DropFolder.ListReady(folder);
+        var modeName = from is null ? "inbox, inputs moved" : "read in place, inputs copied";
+        Log.RunStarted(logger, inputs.Count, folder, modeName);
+        using var stop = new CancellationTokenSource();
+        ConsoleCancelEventHandler onCancel = (_, e) =>
+        {
+            e.Cancel = true;
+            stop.Cancel();
+        };
+        Console.CancelKeyPress += onCancel;
+        var clock = Stopwatch.StartNew();
+        try
+        {
+            var counts = await pipeline.Runner.ProcessAsync(inputs, stop.Token).ConfigureAwait(false);
+            Log.RunFinished(logger, counts.Processed, clock.Elapsed.TotalSeconds);
+            printer.PrintTotals(counts, clock.Elapsed, options.Output);
+            return ExitCodes.Ok;
+        }
+        catch (AuditSinkException e)
+        {
+            Log.AuditSinkFailed(logger, e);
+            error.WriteLine("standfit run: " + e.Message);
+            return ExitCodes.Fatal;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            error.WriteLine("standfit run: an output cannot be written (" + e.Message + "); unpublished inputs stay where they are.");
+            return ExitCodes.OutputFault;
+        }
+        finally
+        {
+            Console.CancelKeyPress -= onCancel;
+        }
+    }
+}

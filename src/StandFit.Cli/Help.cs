@@ -1,0 +1,62 @@
+namespace StandFit.Cli;
+
+/// <summary>The help texts of every command.</summary>
+public static class Help
+{
+    public const string Main = """
+        standfit - fits and rules end-of-line sensor sweeps as each part's recipe says.
+
+        Usage: standfit <command> [options]
+
+        Commands:
+          run              process every sweep file now in the inbox (or --from DIR), then exit
+          watch            the long-lived worker: watch the inbox and process files as they land
+          inspect FILE     fit and rule one sweep file with no side effects
+          recipes check P  validate a recipe file or a folder of recipes
+
+        Run 'standfit <command> --help' for a command's options. 'standfit --version' prints the version.
+        Exit codes: 0 done, 1 invalid input (recipes check, inspect), 2 usage, 3 configuration,
+        4 output fault, 5 fatal (pass/fail log not writable).
+        """;
+
+    public const string Run = """
+        Usage: standfit run [--config FILE] [--from DIR] [--quiet]
+
+        Processes every ready sweep file in the inbox, writes the summary Parquet and the pass/fail
+        log, moves each input to archive/ or rejected/, prints one line per unit and the totals, and exits.
+
+          --config FILE   the configuration (default: config/standfit.yaml)
+          --from DIR      read the files of DIR in place instead of the inbox: they are never moved
+                          or changed; copies go to archive/ or rejected/
+          --quiet         print only the totals
+        """;
+
+    public const string Watch = """
+        Usage: standfit watch [--config FILE]
+
+        The worker: watches the inbox (a file watcher wakes it, a rescan every 'watch.poll_seconds'
+        catches what the watcher misses), processes files as they land, and stops cleanly on Ctrl-C or
+        SIGTERM after finishing the unit in hand. Runs under systemd (Type=notify) and as a Windows service.
+
+          --config FILE   the configuration (default: config/standfit.yaml)
+        """;
+
+    public const string Inspect = """
+        Usage: standfit inspect FILE [--config FILE] [--recipe FILE] [--model MODEL] [--json]
+
+        Fits and rules one sweep file and prints the result; writes nothing, moves nothing.
+
+          --config FILE   the configuration whose recipes are matched (default: config/standfit.yaml)
+          --recipe FILE   judge with this recipe file, whatever the unit's part
+          --model MODEL   fit this model instead of the recipe's: straight-line,
+                          straight-line-through-zero, or polynomial-K (K = 2..10)
+          --json          print every field of the summary row as JSON
+        """;
+
+    public const string RecipesCheck = """
+        Usage: standfit recipes check PATH
+
+        Validates a recipe file, or every *.yaml / *.yml file of a folder. Prints each problem as
+        file:line:column: message [code]. Exit code 0 when all are valid, 1 otherwise.
+        """;
+}

@@ -1,0 +1,15 @@
+using System.Globalization;
+using System.Reflection;
+
+namespace StandFit.Edges.Processing;
+
+/// <summary>The tool's version as written to every output row, and run identifiers.</summary>
+public static class ToolInfo
+{
+    public static string Version { get; } =
+        typeof(ToolInfo).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion ?? "0.0.0";
+
+    /// <summary>A run id unique on this machine: UTC start time and process id, safe in file names.</summary>
+    public static string NewRunId(DateTimeOffset nowUtc) =>
+        string.Create(CultureInfo.InvariantCulture, $"run-{nowUtc.UtcDateTime:yyyyMMdd'T'HHmmssfff}-{Environment.ProcessId}");
+}
