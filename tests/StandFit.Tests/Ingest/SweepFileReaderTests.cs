@@ -198,7 +198,7 @@ public sealed class SweepFileReaderTests
         using var folder = new TempFolder();
         var path = Path.Combine(folder.Path, "big.csv");
         var bytes = Encoding.UTF8.GetBytes("x,y\n1,2\n3,4\n");
-        System.IO.File.WriteAllBytes(path, bytes);
+        File.WriteAllBytes(path, bytes);
 
         var file = new SweepFileReader(maxFileBytes: bytes.Length - 1).Read(path);
 
@@ -217,7 +217,7 @@ public sealed class SweepFileReaderTests
         using var folder = new TempFolder();
         var path = Path.Combine(folder.Path, "SN-5.csv");
         var bytes = Encoding.UTF8.GetBytes("x,y\n1,2\n3,4\n");
-        System.IO.File.WriteAllBytes(path, bytes);
+        File.WriteAllBytes(path, bytes);
 
         var file = new SweepFileReader(maxFileBytes: bytes.Length).Read(path);
 

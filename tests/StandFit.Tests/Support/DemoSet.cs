@@ -1,0 +1,58 @@
+namespace StandFit.Tests.Support;
+
+/// <summary>The shipped demo: sample-runs/line-3 and its documented expectations (sample-runs/expected.csv).</summary>
+public static class DemoSet
+{
+    public sealed record Expectation(string File, string Ruling, IReadOnlyList<string> Reasons);
+
+    public static string Folder => RepoPaths.InRepo("sample-runs", "line-3");
+
+    public static string Recipes => RepoPaths.InRepo("config", "recipes");
+
+    public static IReadOnlyList<Expectation> Expected { get; } = Load();
+
+    /// <summary>A configuration file for a test: all folders under <paramref name="root"/>, the demo's recipes.</summary>
+    public static string WriteConfig(TempFolder root, int flushUnits = 5000)
+    {
+        var recipes = Recipes.Replace("\\", "/", StringComparison.Ordinal);
+        return root.File("standfit.yaml", $"""
+            folders:
+              inbox: inbox
+              archive: archive
+              rejected: rejected
+              output: output
+              recipes: "{recipes}"
+              logs: logs
+            watch:
+              poll_seconds: 0.2
+            output:
+              flush_units: {flushUnits}
+            """);
+    }
+
+    public static void CopyInto(string inbox)
+    {
+        Directory.CreateDirectory(inbox);
+        foreach (var file in Directory.EnumerateFiles(Folder))
+        {
+            File.Copy(file, Path.Combine(inbox, Path.GetFileName(file)));
+        }
+    }
+
+    private static List<Expectation> Load()
+    {
+        var rows = new List<Expectation>();
+        foreach (var line in File.ReadAllLines(RepoPaths.InRepo("sample-runs", "expected.csv")).Skip(1))
+        {
+            if (line.Length == 0)
+            {
+                continue;
+            }
+
+            var cells = line.Split(',');
+            rows.Add(new Expectation(cells[0], cells[1].ToLowerInvariant(), cells[2].Length == 0 ? [] : cells[2].Split(';')));
+        }
+
+        return rows;
+    }
+}
