@@ -35,10 +35,10 @@ public sealed class SweepAssemblerTests
         var sweep = SweepAssembler.Assemble(table, Columns).Value;
 
         Assert.Equal(3, sweep.Count);
-        Assert.Equal([0.0, 50.0, 100.0], sweep.Stimulus);
-        Assert.Equal([0.01, 10.02, 20.00], sweep.Output);
-        Assert.Equal([Leg.Up, Leg.Up, Leg.Down], sweep.Legs);
-        Assert.Equal([5, 6, 7], sweep.SourceLines);
+        Assert.Equal<double>([0.0, 50.0, 100.0], sweep.Stimulus);
+        Assert.Equal<double>([0.01, 10.02, 20.00], sweep.Output);
+        Assert.Equal<Leg>([Leg.Up, Leg.Up, Leg.Down], sweep.Legs);
+        Assert.Equal<int>([5, 6, 7], sweep.SourceLines);
         Assert.Equal(new UnitIdentity("SN-77", "KP-250", "ST-3", null), sweep.Identity);
         Assert.Equal(3, sweep.Metadata.Length);
     }
@@ -108,7 +108,7 @@ public sealed class SweepAssemblerTests
 
         var sweep = SweepAssembler.Assemble(table, Columns).Value;
 
-        Assert.Equal([Leg.Up, Leg.Up, Leg.Down, Leg.Down], sweep.Legs);
+        Assert.Equal<Leg>([Leg.Up, Leg.Up, Leg.Down, Leg.Down], sweep.Legs);
     }
 
     [Fact]
@@ -183,10 +183,10 @@ public sealed class SweepAssemblerTests
 
         var sweep = SweepAssembler.Assemble(table, Columns).Value;
 
-        Assert.Equal([10.0, 11.0, 20.0, 30.0, 40.0], sweep.Stimulus);
-        Assert.Equal([1.0, 1.1, 2.0, 3.0, 4.0], sweep.Output);
-        Assert.Equal([Leg.Up, Leg.Down, Leg.Up, Leg.Up, Leg.Down], sweep.Legs);
-        Assert.Equal([3, 5, 4, 2, 6], sweep.SourceLines);
+        Assert.Equal<double>([10.0, 11.0, 20.0, 30.0, 40.0], sweep.Stimulus);
+        Assert.Equal<double>([1.0, 1.1, 2.0, 3.0, 4.0], sweep.Output);
+        Assert.Equal<Leg>([Leg.Up, Leg.Down, Leg.Up, Leg.Up, Leg.Down], sweep.Legs);
+        Assert.Equal<int>([3, 5, 4, 2, 6], sweep.SourceLines);
     }
 
     [Fact]
@@ -194,8 +194,8 @@ public sealed class SweepAssemblerTests
     {
         var sweep = SweepAssembler.Assemble(Table("pressure_kPa,output_mV\n30,3\n10,1\n20,2\n"), PlainColumns).Value;
 
-        Assert.Equal([30.0, 10.0, 20.0], sweep.Stimulus);
-        Assert.Equal([2, 3, 4], sweep.SourceLines);
+        Assert.Equal<double>([30.0, 10.0, 20.0], sweep.Stimulus);
+        Assert.Equal<int>([2, 3, 4], sweep.SourceLines);
     }
 
     [Fact]

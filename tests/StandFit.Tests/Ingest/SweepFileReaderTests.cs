@@ -24,7 +24,7 @@ public sealed class SweepFileReaderTests
 
         Assert.Equal(Name, file.Name);
         Assert.Equal(Encoding.UTF8.GetByteCount(Sweep), file.Bytes);
-        Assert.Equal(["pressure_kPa", "output_mV"], file.Table.Value.Header);
+        Assert.Equal<string>(["pressure_kPa", "output_mV"], file.Table.Value.Header);
     }
 
     [Fact]

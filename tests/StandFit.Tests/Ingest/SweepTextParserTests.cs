@@ -30,10 +30,10 @@ public sealed class SweepTextParserTests
         Assert.Equal(["serial", "part"], table.Metadata.Select(m => m.Key));
         Assert.Equal(["SN-1001", "KP-250"], table.Metadata.Select(m => m.Value));
         Assert.Equal([1, 2], table.Metadata.Select(m => m.Line));
-        Assert.Equal(["pressure_kPa", "output_mV"], table.Header);
+        Assert.Equal<string>(["pressure_kPa", "output_mV"], table.Header);
         Assert.Equal(3, table.HeaderLine);
         Assert.Equal([4, 5], table.Rows.Select(r => r.Line));
-        Assert.Equal(["50", "10.02"], table.Rows[1].Cells);
+        Assert.Equal<string>(["50", "10.02"], table.Rows[1].Cells);
     }
 
     [Theory]
@@ -82,8 +82,8 @@ public sealed class SweepTextParserTests
         var table = SweepTextParser.Parse(File, text).Value;
 
         Assert.Equal("SN-1", table.Meta(MetadataKeys.Serial));
-        Assert.Equal(["x", "y"], table.Header);
-        Assert.Equal(["3", "4"], table.Rows[1].Cells);
+        Assert.Equal<string>(["x", "y"], table.Header);
+        Assert.Equal<string>(["3", "4"], table.Rows[1].Cells);
         Assert.Equal([3, 4], table.Rows.Select(r => r.Line));
     }
 
@@ -102,8 +102,8 @@ public sealed class SweepTextParserTests
     {
         var table = SweepTextParser.Parse(File, " x , y \n 1 ,\t2 \n").Value;
 
-        Assert.Equal(["x", "y"], table.Header);
-        Assert.Equal(["1", "2"], table.Rows[0].Cells);
+        Assert.Equal<string>(["x", "y"], table.Header);
+        Assert.Equal<string>(["1", "2"], table.Rows[0].Cells);
     }
 
     [Fact]

@@ -92,7 +92,7 @@ public sealed class RecipeBinderTests
 
         Assert.Equal("KP-250 pressure transducer", recipe.Name);
         Assert.Equal("2026.11", recipe.Version);
-        Assert.Equal(["KP-250"], recipe.Parts);
+        Assert.Equal<string>(["KP-250"], recipe.Parts);
         Assert.Equal(new ColumnMap("pressure_kPa", "output_mV", "leg", "step"), recipe.Columns);
         Assert.Equal(new ColumnUnits("kPa", "mV"), recipe.Units);
         Assert.Same(Polynomial.StraightLine, recipe.Model);
@@ -128,7 +128,7 @@ public sealed class RecipeBinderTests
             confidence: 0.99
             """).Value;
 
-        Assert.Equal(["KP-1", "KP-2"], recipe.Parts);
+        Assert.Equal<string>(["KP-1", "KP-2"], recipe.Parts);
         Assert.Equal(new ColumnMap("x", "y"), recipe.Columns);
         Assert.Equal(ColumnUnits.None, recipe.Units);
         Assert.Same(Polynomial.StraightLineThroughZero, recipe.Model);
@@ -283,7 +283,7 @@ public sealed class RecipeBinderTests
     {
         var recipe = Bind(Replace(PartsLine, "parts: [\"no\", 'NO-2']")).Value;
 
-        Assert.Equal(["no", "NO-2"], recipe.Parts);
+        Assert.Equal<string>(["no", "NO-2"], recipe.Parts);
     }
 
     [Fact]

@@ -47,7 +47,7 @@ public sealed class RecipeCatalogTests : IDisposable
 
         Assert.True(catalog.IsValid, catalog.Report());
         Assert.Equal(2, catalog.Recipes.Length);
-        Assert.Equal(["kp-100.yml", "kp-250.yaml"], catalog.FilesChecked);
+        Assert.Equal<string>(["kp-100.yml", "kp-250.yaml"], catalog.FilesChecked);
         Assert.Equal("KP-250 transducer", catalog.Match(Sweep("# part: kp-250\n")).Value.Name);
         Assert.Equal("KP-100 transducer", catalog.Match(Sweep("# Part: KP-100b\n")).Value.Name);
         Assert.Equal("kp-100.yml", catalog.Match(Sweep("# part: KP-100\n")).Value.SourceFile);
@@ -73,7 +73,7 @@ public sealed class RecipeCatalogTests : IDisposable
         var catalog = RecipeCatalog.Load(_folder);
 
         Assert.True(catalog.IsValid, catalog.Report());
-        Assert.Equal(["kp-250.yaml"], catalog.FilesChecked);
+        Assert.Equal<string>(["kp-250.yaml"], catalog.FilesChecked);
     }
 
     [Fact]
