@@ -22,6 +22,8 @@ public enum DispositionMode
 /// </summary>
 public sealed class FileDisposer(string archive, string rejected, DispositionMode mode)
 {
+    private readonly HashSet<string> _created = new(StringComparer.Ordinal);
+
     public DispositionMode Mode { get; } = mode;
 
     public string Archive(string input, string sha256, DateTime processedAtUtc) => Place(input, sha256, Folder(archive, processedAtUtc));
@@ -41,10 +43,17 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
         return destination;
     }
 
-    private static string Folder(string root, DateTime processedAtUtc)
+    private string Folder(string root, DateTime processedAtUtc)
     {
         var folder = Path.Combine(root, processedAtUtc.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture));
-        Directory.CreateDirectory(folder);
+        lock (_created)
+        {
+            if (_created.Add(folder))
+            {
+                Directory.CreateDirectory(folder);
+            }
+        }
+
         return folder;
     }
 
@@ -68,6 +77,22 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
             destination = Path.Combine(folder, $"{Path.GetFileNameWithoutExtension(name)}~{sha256[..12]}{Path.GetExtension(name)}");
         }
 
+        try
+        {
+            Transfer(input, destination);
+        }
+        catch (DirectoryNotFoundException)
+        {
+            // The dated folder was removed while the worker ran: make it again.
+            Directory.CreateDirectory(folder);
+            Transfer(input, destination);
+        }
+
+        return destination;
+    }
+
+    private void Transfer(string input, string destination)
+    {
         if (Mode == DispositionMode.Move)
         {
             File.Move(input, destination, overwrite: true);
@@ -76,7 +101,5 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
         {
             File.Copy(input, destination, overwrite: true);
         }
-
-        return destination;
     }
 }

@@ -9,7 +9,7 @@ namespace StandFit.Edges.Logging;
 /// </summary>
 public static partial class Log
 {
-    [LoggerMessage(EventId = 1001, Level = LogLevel.Information, Message = "Unit {Serial} from {SourceFile}: {Ruling} ({Reasons})")]
+    [LoggerMessage(EventId = 1001, Level = LogLevel.Debug, Message = "Unit {Serial} from {SourceFile}: {Ruling} ({Reasons})")]
     public static partial void UnitJudged(ILogger logger, string? serial, string sourceFile, string ruling, string reasons);
 
     [LoggerMessage(EventId = 1002, Level = LogLevel.Warning, Message = "Unit from {SourceFile} rejected: {Code} at {Location}: {Why}")]

@@ -94,7 +94,7 @@ public sealed class BatchRunner(
             }
             else
             {
-                if (logger.IsEnabled(LogLevel.Information))
+                if (logger.IsEnabled(LogLevel.Debug))
                 {
                     var reasons = string.Join(',', records[i].ReasonCodes);
                     Log.UnitJudged(logger, records[i].Serial, unit.File.Name, records[i].Ruling, reasons);

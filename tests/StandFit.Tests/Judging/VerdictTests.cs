@@ -68,7 +68,7 @@ public sealed class VerdictTests
     }
 
     [Fact]
-    public void A_rejected_verdict_from_a_problem_carries_its_code_and_located_message()
+    public void A_rejected_verdict_from_a_problem_carries_its_code_and_located_message_without_repeating_the_code()
     {
         var problem = new Problem("input.bad_number", "'x' in column 'output_mV' is not a number", SourceLocation.At("SN-1.csv", 4, 2));
 
@@ -78,7 +78,7 @@ public sealed class VerdictTests
         var reason = Assert.Single(verdict.Reasons);
         Assert.Equal("input.bad_number", reason.Code);
         Assert.Equal(ReasonKind.Reject, reason.Kind);
-        Assert.Equal("SN-1.csv:4:2: 'x' in column 'output_mV' is not a number [input.bad_number]", reason.Sentence);
+        Assert.Equal("SN-1.csv:4:2: 'x' in column 'output_mV' is not a number", reason.Sentence);
     }
 
     [Fact]

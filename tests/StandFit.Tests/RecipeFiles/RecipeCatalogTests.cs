@@ -156,6 +156,18 @@ public sealed class RecipeCatalogTests : IDisposable
         Assert.All(report, line => Assert.StartsWith("broken.yaml:", line, StringComparison.Ordinal));
     }
 
+    [Fact(Skip = "bug: YamlTree.Parse lets YamlDotNet's InvalidOperationException escape on an unclosed flow mapping, so RecipeCatalog.Load throws and the good recipe is not loaded either")]
+    public void A_recipe_file_with_an_unclosed_flow_mapping_is_reported_and_the_good_recipe_stays_in_force()
+    {
+        Write("good.yaml", Recipe("good", "KP-250"));
+        Write("unclosed.yaml", Recipe("unclosed", "KP-100").Replace("max: 0.2010 }", "max: 0.2010", StringComparison.Ordinal) + "gates:\n  runs_test:\n    p_min: 0.01\n");
+
+        var catalog = RecipeCatalog.Load(_folder);
+
+        Assert.Equal("recipe.syntax", Assert.Single(catalog.Problems).Code);
+        Assert.Equal("good", Assert.Single(catalog.Recipes).Name);
+    }
+
     [Fact]
     public void A_recipe_file_that_is_not_utf8_is_recipe_unreadable()
     {
