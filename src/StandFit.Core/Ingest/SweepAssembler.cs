@@ -16,6 +16,13 @@ public static class SweepAssembler
 
     private const NumberStyles NumberStyle = NumberStyles.Float;
 
+    /// <summary>ISO 8601 date and time with a zone designator (Z or an offset); a space may stand for the 'T'.</summary>
+    private static readonly string[] TestStartFormats =
+    [
+        "yyyy-MM-dd'T'HH:mm:ssK", "yyyy-MM-dd'T'HH:mm:ss.FFFFFFFK", "yyyy-MM-dd'T'HH:mmK",
+        "yyyy-MM-dd HH:mm:ssK", "yyyy-MM-dd HH:mm:ss.FFFFFFFK", "yyyy-MM-dd HH:mmK",
+    ];
+
     public static Result<Sweep> Assemble(SweepTable table, ColumnMap columns)
     {
         var identity = ReadIdentity(table);
@@ -130,7 +137,7 @@ public static class SweepAssembler
         var startEntry = table.Metadata.FirstOrDefault(m => m.Key == MetadataKeys.TestStart);
         if (startEntry is not null)
         {
-            if (!DateTimeOffset.TryParse(startEntry.Value, CultureInfo.InvariantCulture, DateTimeStyles.AssumeUniversal, out var parsed))
+            if (!DateTimeOffset.TryParseExact(startEntry.Value, TestStartFormats, CultureInfo.InvariantCulture, DateTimeStyles.None, out var parsed))
             {
                 return new Problem(ReasonCodes.InputBadMetadata.Code, Messages.BadTestStart(Shown(startEntry.Value)), SourceLocation.At(table.SourceName, startEntry.Line));
             }

@@ -21,7 +21,7 @@ public static class Messages
     public static string DuplicateMetadata(string key, int firstLine) => F($"metadata key '{key}' is given again with a different value (first on line {firstLine}). Keep one.");
     public static string MissingSerial() => "the file names no serial ('# serial: ...') and its file name gives none. Add the serial line.";
     public static string BadSerial(string shown) => F($"serial '{shown}' holds a path separator, a control character or more than 64 characters. Fix the stand's serial entry.");
-    public static string BadTestStart(string shown) => F($"'test start' value '{shown}' is not an ISO 8601 time (for example 2026-11-30T22:14:05Z). Fix the stand's clock export.");
+    public static string BadTestStart(string shown) => F($"'test start' value '{shown}' is not an ISO 8601 date and time with a zone (for example 2026-11-30T22:14:05Z or 2026-11-30T23:14:05+01:00). Fix the stand's clock export.");
     public static string NoHeader() => "there is no header row of column names after the metadata lines. Add the header row.";
     public static string EmptyColumnName(int column) => F($"column {column} of the header has no name. Name every column.");
     public static string DuplicateColumn(string name, int firstColumn) => F($"column name '{name}' appears twice (first as column {firstColumn}). Give each column its own name.");
@@ -87,7 +87,15 @@ public static class Messages
             "below" => min!.Value,
             _ => max ?? min ?? 0.0,
         };
-        var digits = Math.Max(Numbers.DigitsToTellApart(low, limit), Numbers.DigitsToTellApart(high, limit));
+        var digits = 5;
+        foreach (var bound in new[] { min, max })
+        {
+            if (bound is { } edge)
+            {
+                digits = Math.Max(digits, Math.Max(Numbers.DigitsToTellApart(low, edge), Numbers.DigitsToTellApart(high, edge)));
+            }
+        }
+
         var interval = F($"[{Numbers.Format(low, digits)}, {Numbers.Format(high, digits)}]");
         var u = unit.Length == 0 ? "" : " " + unit;
         var limits = F($"[{(min is { } a ? Numbers.Format(a, digits) : "-inf")}, {(max is { } b ? Numbers.Format(b, digits) : "+inf")}]");

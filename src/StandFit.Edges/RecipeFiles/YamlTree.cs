@@ -26,6 +26,7 @@ public static class YamlTree
 {
     public static Result<YamlNode?> Parse(string file, string text)
     {
+        var last = new Mark[] { Mark.Empty };
         try
         {
             var parser = new Parser(new StringReader(text));
@@ -36,7 +37,7 @@ public static class YamlTree
             }
 
             parser.Consume<DocumentStart>();
-            var root = ReadNode(parser, file);
+            var root = ReadNode(parser, file, last);
             parser.Consume<DocumentEnd>();
             if (!parser.Accept<StreamEnd>(out _))
             {
@@ -54,11 +55,18 @@ public static class YamlTree
         {
             return Problem(file, e.Start, Messages.RecipeYamlSyntax(e.InnerException?.Message ?? e.Message));
         }
+        catch (InvalidOperationException e)
+        {
+            // YamlDotNet's scanner throws this on some malformed input (an unclosed flow mapping
+            // followed by more lines): still a syntax problem of the user's file, near the last node read.
+            return Problem(file, last[0], Messages.RecipeYamlSyntax(e.Message));
+        }
     }
 
-    private static YamlNode ReadNode(IParser parser, string file)
+    private static YamlNode ReadNode(IParser parser, string file, Mark[] last)
     {
-        var current = parser.Current ?? throw new RefusedYamlException(Mark.Empty, Messages.RecipeYamlSyntax("unexpected end of input"));
+        var current = parser.Current ?? throw new RefusedYamlException(last[0], Messages.RecipeYamlSyntax("unexpected end of input"));
+        last[0] = current.Start;
         switch (current)
         {
             case AnchorAlias alias:
@@ -79,7 +87,7 @@ public static class YamlTree
             var items = ImmutableArray.CreateBuilder<YamlNode>();
             while (!parser.TryConsume<SequenceEnd>(out _))
             {
-                items.Add(ReadNode(parser, file));
+                items.Add(ReadNode(parser, file, last));
             }
 
             return new YamlList(items.ToImmutable(), (int)sequenceStart.Start.Line, (int)sequenceStart.Start.Column);
@@ -90,13 +98,13 @@ public static class YamlTree
             var entries = ImmutableArray.CreateBuilder<YamlEntry>();
             while (!parser.TryConsume<MappingEnd>(out _))
             {
-                var key = ReadNode(parser, file);
+                var key = ReadNode(parser, file, last);
                 if (key is not YamlScalar keyScalar)
                 {
                     throw new RefusedYamlException(new Mark(0, key.Line, key.Column), Messages.RecipeComplexKey());
                 }
 
-                entries.Add(new YamlEntry(keyScalar, ReadNode(parser, file)));
+                entries.Add(new YamlEntry(keyScalar, ReadNode(parser, file, last)));
             }
 
             return new YamlMap(entries.ToImmutable(), (int)mappingStart.Start.Line, (int)mappingStart.Start.Column);

@@ -303,6 +303,28 @@ public sealed class SweepAssemblerTests
     }
 
     [Fact]
+    public void An_iso_test_start_without_an_offset_is_taken_as_utc()
+    {
+        var identity = SweepAssembler.ReadIdentity(Table("# serial: SN-1\n# test start: 2026-11-30T22:14:05\nx,y\n1,2\n")).Value;
+
+        Assert.Equal(new DateTime(2026, 11, 30, 22, 14, 5, DateTimeKind.Utc), identity.TestStartUtc);
+    }
+
+    [Theory]
+    [InlineData("01/12/2026 08:00")]
+    [InlineData("22:14")]
+    [InlineData("Nov 30 2026")]
+    public void A_test_start_that_is_not_iso_8601_is_rejected_as_input_bad_metadata(string value)
+    {
+        var table = Table($"# serial: SN-1\n# test start: {value}\nx,y\n1,2\n");
+
+        var problem = SingleProblem(SweepAssembler.ReadIdentity(table));
+
+        Assert.Equal("input.bad_metadata", problem.Code);
+        Assert.Equal(2, problem.Location.Line);
+    }
+
+    [Fact]
     public void Shown_makes_control_characters_visible_and_cuts_long_text()
     {
         Assert.Equal("a\\u000ab", SweepAssembler.Shown("a\nb"));

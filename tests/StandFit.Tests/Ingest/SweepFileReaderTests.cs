@@ -158,6 +158,17 @@ public sealed class SweepFileReaderTests
         Assert.Equal("input.encoding", SingleProblem(SweepFileReader.Decode(Name, bytes)).Code);
     }
 
+    [Theory]
+    [InlineData(new byte[] { 0xED, 0xA0, 0x80 })]
+    [InlineData(new byte[] { 0xC0, 0xAF })]
+    [InlineData(new byte[] { 0xF8, 0x88, 0x80, 0x80, 0x80 })]
+    public void Surrogate_overlong_and_out_of_range_utf8_sequences_are_rejected_as_input_encoding(byte[] sequence)
+    {
+        byte[] bytes = [.. Encoding.UTF8.GetBytes("x,y\n1,"), .. sequence, .. Encoding.UTF8.GetBytes("\n")];
+
+        Assert.Equal("input.encoding", SingleProblem(SweepFileReader.Decode(Name, bytes)).Code);
+    }
+
     [Fact]
     public void No_bytes_at_all_is_rejected_as_input_empty()
     {

@@ -121,6 +121,24 @@ public sealed class PassFailLogTests
     }
 
     [Fact]
+    public void Each_half_of_a_surrogate_pair_becomes_a_lower_case_unicode_escape()
+    {
+        Assert.Equal("\"ST\\ud83d\\ude003\"", PassFailLog.Escape("ST\U0001F6003"));
+    }
+
+    [Fact]
+    public void An_equals_sign_is_quoted_so_a_value_cannot_pose_as_another_field()
+    {
+        Assert.Equal("\"x key=forged\"", PassFailLog.Escape("x key=forged"));
+    }
+
+    [Fact]
+    public void A_literal_dash_is_written_bare_and_reads_like_no_value_as_documented()
+    {
+        Assert.Equal(PassFailLog.Escape(null), PassFailLog.Escape("-"));
+    }
+
+    [Fact]
     public void A_serial_or_station_with_a_newline_can_never_break_a_line()
     {
         var record = Record();
