@@ -49,7 +49,7 @@ public static class Help
           --config FILE   the configuration whose recipes are matched (default: config/standfit.yaml)
           --recipe FILE   judge with this recipe file, whatever the unit's part
           --model MODEL   fit this model instead of the recipe's: straight-line,
-                          straight-line-through-zero, or polynomial-K (K = 2..10)
+                          straight-line-through-zero, or polynomial-K (K = 1..10)
           --json          print every field of the summary row as JSON
         """;
 

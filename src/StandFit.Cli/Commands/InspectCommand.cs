@@ -39,7 +39,7 @@ internal static class InspectCommand
         LinearModel? model = null;
         if (parsed.Value("--model") is { } modelName && (model = ParseModel(modelName)) is null)
         {
-            error.WriteLine($"standfit inspect: unknown model '{modelName}'; use straight-line, straight-line-through-zero or polynomial-K (K = 2..10).");
+            error.WriteLine($"standfit inspect: unknown model '{modelName}'; use straight-line, straight-line-through-zero or polynomial-K (K = 1..10).");
             return ExitCodes.Usage;
         }
 
@@ -68,6 +68,12 @@ internal static class InspectCommand
             return ExitCodes.Configuration;
         }
 
+        if (parsed.Has("--recipe") && catalog.Recipes.Length != 1)
+        {
+            error.WriteLine($"standfit inspect: --recipe needs one recipe file; '{parsed.Value("--recipe")}' holds {catalog.Recipes.Length}.");
+            return ExitCodes.Usage;
+        }
+
         var processor = new UnitProcessor(new SweepFileReader(maxBytes), () => catalog, NullLogger.Instance)
         {
             RecipeOverride = parsed.Has("--recipe") ? catalog.Recipes.Single() : null,
@@ -84,7 +90,7 @@ internal static class InspectCommand
             return ExitCodes.Invalid;
         }
 
-        var record = SummaryRecordFactory.Create(unit.Evaluation, unit.File.Sha256, DateTime.UtcNow, ToolInfo.Version);
+        var record = SummaryRecordFactory.Create(unit.Evaluation, unit.File.Sha256, DateTime.UtcNow, ToolInfo.Version, unit.File.Metadata);
         output.WriteLine(parsed.Has("--json") ? JsonSerializer.Serialize(record, Json) : UnitReport.Render(unit.Evaluation, record));
         return ExitCodes.Ok;
     }

@@ -34,6 +34,14 @@ internal static class WatchCommand
             return ExitCodes.Configuration;
         }
 
+        var recipes = Edges.RecipeFiles.RecipeCatalog.Load(options.Recipes);
+        if (!recipes.IsValid)
+        {
+            // At start there is no earlier good version to keep in force: refuse, as run does.
+            Startup.Print(error, "recipe folder", recipes.Problems);
+            return ExitCodes.Configuration;
+        }
+
         using var log = Edges.Logging.OperationsLog.Create(options.Logs, LogEventLevel.Information);
         var builder = Host.CreateApplicationBuilder(new HostApplicationBuilderSettings { Args = [], ContentRootPath = AppContext.BaseDirectory });
         builder.Logging.ClearProviders();
@@ -46,11 +54,6 @@ internal static class WatchCommand
         {
             var loggers = sp.GetRequiredService<ILoggerFactory>();
             var pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System);
-            if (!pipeline.Catalog.IsValid)
-            {
-                Startup.Print(error, "recipe folder", pipeline.Catalog.Problems);
-            }
-
             return new InboxLoop(options.Inbox, pipeline.Runner, TimeSpan.FromSeconds(options.PollSeconds), TimeProvider.System, loggers.CreateLogger("StandFit.Worker"));
         });
         builder.Services.AddHostedService<WatchService>();

@@ -1,3 +1,4 @@
+using System.Collections.Immutable;
 using System.Globalization;
 using System.Runtime.InteropServices;
 using StandFit.Core.Problems;
@@ -118,34 +119,51 @@ public static class SweepAssembler
     }
 
     /// <summary>Serial (from metadata, else the file name without extension), part, station and test start.</summary>
-    public static Result<UnitIdentity> ReadIdentity(SweepTable table)
+    public static Result<UnitIdentity> ReadIdentity(SweepTable table) => ReadIdentity(table.SourceName, table.Metadata);
+
+    /// <summary>Serial (from metadata, else the file name without extension), part, station and test start.</summary>
+    public static Result<UnitIdentity> ReadIdentity(string sourceName, ImmutableArray<MetadataEntry> metadata)
     {
-        var serialEntry = table.Metadata.FirstOrDefault(m => m.Key == MetadataKeys.Serial);
-        var serial = serialEntry?.Value ?? Path.GetFileNameWithoutExtension(table.SourceName);
+        var serialEntry = metadata.FirstOrDefault(m => m.Key == MetadataKeys.Serial);
+        var serial = serialEntry?.Value ?? Path.GetFileNameWithoutExtension(sourceName);
         var serialLine = serialEntry?.Line ?? 0;
         if (serial.Length == 0)
         {
-            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.MissingSerial(), SourceLocation.At(table.SourceName, serialLine));
+            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.MissingSerial(), SourceLocation.At(sourceName, serialLine));
         }
 
         if (!IsSafeSerial(serial))
         {
-            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.BadSerial(Shown(serial)), SourceLocation.At(table.SourceName, serialLine));
+            return new Problem(ReasonCodes.InputBadSerial.Code, Messages.BadSerial(Shown(serial)), SourceLocation.At(sourceName, serialLine));
         }
 
         DateTime? testStart = null;
-        var startEntry = table.Metadata.FirstOrDefault(m => m.Key == MetadataKeys.TestStart);
+        var startEntry = metadata.FirstOrDefault(m => m.Key == MetadataKeys.TestStart);
         if (startEntry is not null)
         {
-            if (!DateTimeOffset.TryParseExact(startEntry.Value, TestStartFormats, CultureInfo.InvariantCulture, DateTimeStyles.None, out var parsed))
+            if (!HasZone(startEntry.Value) || !DateTimeOffset.TryParseExact(startEntry.Value, TestStartFormats, CultureInfo.InvariantCulture, DateTimeStyles.None, out var parsed))
             {
-                return new Problem(ReasonCodes.InputBadMetadata.Code, Messages.BadTestStart(Shown(startEntry.Value)), SourceLocation.At(table.SourceName, startEntry.Line));
+                return new Problem(ReasonCodes.InputBadMetadata.Code, Messages.BadTestStart(Shown(startEntry.Value)), SourceLocation.At(sourceName, startEntry.Line));
             }
 
             testStart = parsed.UtcDateTime;
         }
 
-        return new UnitIdentity(serial, table.Meta(MetadataKeys.Part), table.Meta(MetadataKeys.Station), testStart);
+        return new UnitIdentity(serial, Meta(metadata, MetadataKeys.Part), Meta(metadata, MetadataKeys.Station), testStart);
+    }
+
+    /// <summary>True when an ISO 8601 text ends in a zone designator: Z, +hh:mm, -hh:mm, +hhmm or +hh.</summary>
+    private static bool HasZone(string text)
+    {
+        var t = text.TrimEnd();
+        if (t.EndsWith('Z') || t.EndsWith('z'))
+        {
+            return true;
+        }
+
+        var sign = Math.Max(t.LastIndexOf('+'), t.LastIndexOf('-'));
+        var tPosition = Math.Max(t.IndexOf('T', StringComparison.Ordinal), t.IndexOf(' ', StringComparison.Ordinal));
+        return sign > tPosition && tPosition > 0 && t[(sign + 1)..].Replace(":", "", StringComparison.Ordinal).All(char.IsAsciiDigit) && t.Length - sign - 1 >= 2;
     }
 
     /// <summary>A serial may be used in file names and log lines: no separators, no control characters.</summary>
@@ -186,6 +204,8 @@ public static class SweepAssembler
 
         return builder.ToString();
     }
+
+    private static string? Meta(ImmutableArray<MetadataEntry> metadata, string key) => metadata.FirstOrDefault(m => m.Key == key)?.Value;
 
     private static int Find(SweepTable table, string name)
     {

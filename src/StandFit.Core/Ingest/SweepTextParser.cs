@@ -113,6 +113,44 @@ public static class SweepTextParser
         return new SweepTable(sourceName, metadata.ToImmutable(), header, headerLine, rows.ToImmutable());
     }
 
+    /// <summary>
+    /// The leading metadata lines of a text, read leniently (first value of a key wins, bad lines
+    /// skipped): what is known of a unit whose file is rejected, so its row still names it.
+    /// </summary>
+    public static ImmutableArray<MetadataEntry> ScanMetadata(string text)
+    {
+        var entries = ImmutableArray.CreateBuilder<MetadataEntry>();
+        var lineNumber = 0;
+        foreach (var raw in text.AsSpan().EnumerateLines())
+        {
+            lineNumber++;
+            var line = raw.Trim();
+            if (line.IsEmpty)
+            {
+                continue;
+            }
+
+            if (line[0] != '#' || line.Length > MaxLineLength || lineNumber > 1000)
+            {
+                break;
+            }
+
+            var colon = line.IndexOf(':');
+            if (colon < 1)
+            {
+                continue;
+            }
+
+            var key = MetadataKeys.Normalise(line[1..colon].ToString());
+            if (key.Length > 0 && !entries.Any(e => e.Key == key))
+            {
+                entries.Add(new MetadataEntry(key, line[(colon + 1)..].Trim().ToString(), lineNumber));
+            }
+        }
+
+        return entries.ToImmutable();
+    }
+
     private static Problem? ReadMetadata(ReadOnlySpan<char> body, string sourceName, int lineNumber, ImmutableArray<MetadataEntry>.Builder metadata)
     {
         var colon = body.IndexOf(':');

@@ -53,7 +53,9 @@ public static class Messages
     public static string EmptyValue(string where, string kind) => F($"{where} is empty; give {kind}. An empty value is never read as 0 or as a default.");
     public static string NotANumber(string where, string shown) => F($"{where} must be a number, not '{shown}'.");
     public static string QuotedNumber(string where, string shown) => F($"{where} must be a number without quotes: write {shown}.");
-    public static string BooleanTrap(string where, string shown, string kind) => F($"'{shown}' in {where} is read by YAML 1.1 tools as a true/false value, not as {kind}. Write it in quotes: \"{shown}\".");
+    public static string BooleanTrap(string where, string shown, string kind) => kind == "text"
+        ? F($"'{shown}' in {where} is read by YAML 1.1 tools as a true/false value, not as text. Write it in quotes: \"{shown}\".")
+        : F($"'{shown}' in {where} is read by YAML 1.1 tools as a true/false value, not as {kind}. Write {kind} here.");
     public static string OctalTrap(string where, string shown) => F($"'{shown}' in {where} has a leading zero, which YAML 1.1 tools read as an octal number. Write it without the leading zero, or in quotes if it is text.");
     public static string Base60Trap(string where, string shown) => F($"'{shown}' in {where} looks like a base-60 number (YAML 1.1 reads 1:30 as 90). Write a plain decimal number, or quote it if it is text.");
     public static string NotAnInteger(string where, string shown) => F($"{where} must be a whole number, not '{shown}'.");

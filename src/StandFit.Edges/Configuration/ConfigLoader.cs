@@ -11,7 +11,7 @@ public static class ConfigLoader
     public static readonly ImmutableArray<string> TopKeys = ["folders", "reader", "watch", "output"];
     public static readonly ImmutableArray<string> FolderKeys = ["inbox", "archive", "rejected", "output", "recipes", "logs"];
     public static readonly ImmutableArray<string> ReaderKeys = ["max_file_bytes"];
-    public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds", "flush_seconds"];
+    public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds"];
     public static readonly ImmutableArray<string> OutputKeys = ["flush_units"];
 
     public static Result<StandFitOptions> Load(string path)
@@ -67,13 +67,11 @@ public static class ConfigLoader
         var maxBytes = reader?.Integer("max_file_bytes", required: false);
         var watch = top.Map("watch", WatchKeys, required: false);
         var poll = watch?.Number("poll_seconds", required: false);
-        var flushSeconds = watch?.Number("flush_seconds", required: false);
         var outputSection = top.Map("output", OutputKeys, required: false);
         var flushUnits = outputSection?.Integer("flush_units", required: false);
 
         Positive(reader, "max_file_bytes", maxBytes);
         Positive(watch, "poll_seconds", poll);
-        Positive(watch, "flush_seconds", flushSeconds);
         Positive(outputSection, "flush_units", flushUnits);
 
         if (sink.HasProblems)
@@ -93,7 +91,6 @@ public static class ConfigLoader
             Logs = logs!,
             MaxFileBytes = maxBytes ?? defaults.MaxFileBytes,
             PollSeconds = poll ?? defaults.PollSeconds,
-            FlushSeconds = flushSeconds ?? defaults.FlushSeconds,
             FlushUnits = flushUnits ?? defaults.FlushUnits,
         };
     }

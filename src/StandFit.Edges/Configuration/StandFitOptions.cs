@@ -30,7 +30,4 @@ public sealed record StandFitOptions
 
     /// <summary>Units per Parquet file and per pass/fail log flush in a one-shot run (default 5000).</summary>
     public int FlushUnits { get; init; } = 5000;
-
-    /// <summary>In <c>watch</c>, the longest a judged unit waits before its rows are published (seconds; default 5).</summary>
-    public double FlushSeconds { get; init; } = 5;
 }

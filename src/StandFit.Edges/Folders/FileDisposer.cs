@@ -17,8 +17,10 @@ public enum DispositionMode
 
 /// <summary>
 /// Puts each processed input in <c>archive/YYYY-MM-DD/</c> or <c>rejected/YYYY-MM-DD/</c> (processing
-/// date, UTC); a rejected file gets a sidecar <c>NAME.rejected.txt</c> saying why. An input is
-/// never deleted or modified. A name already taken by other content gets the content hash appended.
+/// date, UTC); a rejected file gets a sidecar <c>NAME.rejected.txt</c> saying why. An input's bytes
+/// are never modified; in move mode the inbox entry goes away only as a move (or, when the archive
+/// already holds the same bytes under that name, as the second half of one). A name already taken
+/// by other content gets the content hash appended.
 /// </summary>
 public sealed class FileDisposer(string archive, string rejected, DispositionMode mode)
 {

@@ -24,7 +24,7 @@ public static partial class Log
     [LoggerMessage(EventId = 2001, Level = LogLevel.Information, Message = "Batch of {Count} units published: {Passed} pass, {Failed} fail, {Retest} retest, {Rejected} rejected")]
     public static partial void BatchPublished(ILogger logger, int count, int passed, int failed, int retest, int rejected);
 
-    [LoggerMessage(EventId = 2002, Level = LogLevel.Error, Message = "Summary output cannot be written; the batch's inputs stay where they are and will be retried")]
+    [LoggerMessage(EventId = 2002, Level = LogLevel.Error, Message = "Summary output cannot be written; the batch's inputs stay where they are")]
     public static partial void SummaryWriteFailed(ILogger logger, Exception exception);
 
     [LoggerMessage(EventId = 2003, Level = LogLevel.Information, Message = "Run started: {Inputs} inputs in {Folder} ({Mode})")]

@@ -3,6 +3,18 @@ using Parquet.Serialization.Attributes;
 
 namespace StandFit.Edges.Outputs;
 
+/// <summary>One <c># key: value</c> line of the sweep file, as a struct inside the summary row's <c>metadata</c> list.</summary>
+public sealed class MetadataRecord
+{
+    [JsonPropertyName("key")]
+    [ParquetRequired]
+    public string Key { get; set; } = "";
+
+    [JsonPropertyName("value")]
+    [ParquetRequired]
+    public string Value { get; set; } = "";
+}
+
 /// <summary>One parameter of a unit's fit, as a struct inside the summary row's <c>parameters</c> list.</summary>
 public sealed class ParameterRecord
 {
@@ -62,6 +74,10 @@ public sealed class SummaryRecord
     [JsonPropertyName("test_start")]
     [ParquetTimestamp(ParquetTimestampResolution.Milliseconds, useLogicalTimestamp: true, isAdjustedToUTC: true)]
     public DateTime? TestStart { get; set; }
+
+    /// <summary>Every metadata line of the sweep file (normalised keys), including those the tool does not read itself.</summary>
+    [JsonPropertyName("metadata")]
+    public List<MetadataRecord> Metadata { get; set; } = [];
 
     [JsonPropertyName("source_file")]
     [ParquetRequired]

@@ -1,4 +1,5 @@
 using StandFit.Core.Evaluation;
+using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
 using StandFit.Core.Uncertainty;
 
@@ -7,7 +8,7 @@ namespace StandFit.Edges.Outputs;
 /// <summary>Builds the summary row of one judged unit.</summary>
 public static class SummaryRecordFactory
 {
-    public static SummaryRecord Create(UnitEvaluation unit, string sourceSha256, DateTime processedAtUtc, string toolVersion)
+    public static SummaryRecord Create(UnitEvaluation unit, string sourceSha256, DateTime processedAtUtc, string toolVersion, IEnumerable<MetadataEntry>? metadata = null)
     {
         if (processedAtUtc.Kind != DateTimeKind.Utc)
         {
@@ -45,6 +46,7 @@ public static class SummaryRecordFactory
             Reasons = [.. unit.Verdict.Reasons.Select(f => f.Sentence)],
             ProcessedAt = processedAtUtc,
             ToolVersion = toolVersion,
+            Metadata = [.. (metadata ?? unit.Sweep?.Metadata ?? []).Select(m => new MetadataRecord { Key = m.Key, Value = m.Value })],
         };
 
         foreach (var p in unit.Parameters)

@@ -15,7 +15,7 @@ public sealed class BatchCounts
 
     public int Rejected { get; private set; }
 
-    /// <summary>Inputs that could not be read at all (vanished, locked) and were left for a later try.</summary>
+    /// <summary>Inputs that could not be read at all (vanished, locked) and were left for a later try. Inputs not started because of a stop are not counted.</summary>
     public int Skipped { get; private set; }
 
     public void Add(Ruling ruling)

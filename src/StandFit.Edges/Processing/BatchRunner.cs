@@ -43,6 +43,7 @@ public sealed class BatchRunner(
     private async Task<BatchCounts> ProcessBatchAsync(string[] batch, CancellationToken stop)
     {
         var processed = new ProcessedUnit?[batch.Length];
+        var unreadable = 0;
         var counts = new BatchCounts();
         var parallel = new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount };
         Parallel.For(0, batch.Length, parallel, (i, state) =>
@@ -59,6 +60,7 @@ public sealed class BatchRunner(
             }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
+                Interlocked.Increment(ref unreadable);
                 Log.InputUnreadable(logger, Path.GetFileName(batch[i]), e.Message);
             }
         });
@@ -66,7 +68,12 @@ public sealed class BatchRunner(
         var processedAt = clock.GetUtcNow().UtcDateTime;
         processedAt = new DateTime(processedAt.Ticks - (processedAt.Ticks % TimeSpan.TicksPerMillisecond), DateTimeKind.Utc);
         var units = processed.OfType<ProcessedUnit>().ToList();
-        var records = units.Select(u => SummaryRecordFactory.Create(u.Evaluation, u.File.Sha256, processedAt, toolVersion)).ToList();
+        for (var i = 0; i < unreadable; i++)
+        {
+            counts.AddSkipped();
+        }
+
+        var records = units.Select(u => SummaryRecordFactory.Create(u.Evaluation, u.File.Sha256, processedAt, toolVersion, u.File.Metadata)).ToList();
         if (records.Count == 0)
         {
             return counts;
@@ -105,11 +112,6 @@ public sealed class BatchRunner(
 
             counts.Add(unit.Evaluation.Ruling);
             OnPublished?.Invoke(records[i]);
-        }
-
-        foreach (var _ in Enumerable.Range(0, batch.Length - units.Count))
-        {
-            counts.AddSkipped();
         }
 
         Log.BatchPublished(logger, counts.Processed, counts.Passed, counts.Failed, counts.Retest, counts.Rejected);

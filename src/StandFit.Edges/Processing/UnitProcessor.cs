@@ -39,7 +39,8 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
         {
             if (!file.Table.IsSuccess)
             {
-                return UnitEvaluation.Rejected(file.Name, file.Table.Problems[0]);
+                var known = SweepAssembler.ReadIdentity(file.Name, file.Metadata);
+                return UnitEvaluation.Rejected(file.Name, file.Table.Problems[0], known.IsSuccess ? known.Value : null);
             }
 
             var table = file.Table.Value;

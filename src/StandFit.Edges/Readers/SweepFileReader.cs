@@ -1,3 +1,4 @@
+using System.Collections.Immutable;
 using System.Text;
 using StandFit.Core.Ingest;
 using StandFit.Core.Problems;
@@ -5,7 +6,8 @@ using StandFit.Core.Problems;
 namespace StandFit.Edges.Readers;
 
 /// <summary>A sweep file as read from disk: its bytes' SHA-256 and its parsed table (or why it has none).</summary>
-public sealed record SweepFile(string Name, string Sha256, long Bytes, Result<SweepTable> Table);
+/// <remarks><see cref="Metadata"/> is the table's, or, when the table could not be made, what a lenient scan of the leading metadata lines found.</remarks>
+public sealed record SweepFile(string Name, string Sha256, long Bytes, Result<SweepTable> Table, ImmutableArray<MetadataEntry> Metadata);
 
 /// <summary>
 /// Reads a sweep file: size limit, then strict decoding (UTF-8, with or without a byte-order mark;
@@ -32,7 +34,7 @@ public sealed class SweepFileReader
         if (length > MaxFileBytes)
         {
             var hashOfLarge = Hashing.Sha256OfFile(path);
-            return new SweepFile(name, hashOfLarge, length, Fail(ReasonCodes.InputTooLarge, Messages.FileTooLarge(length, MaxFileBytes), name));
+            return new SweepFile(name, hashOfLarge, length, Fail(ReasonCodes.InputTooLarge, Messages.FileTooLarge(length, MaxFileBytes), name), []);
         }
 
         var bytes = File.ReadAllBytes(path);
@@ -43,7 +45,15 @@ public sealed class SweepFileReader
     public static SweepFile Parse(string name, ReadOnlySpan<byte> bytes)
     {
         var sha = Hashing.Sha256Hex(bytes);
-        return new SweepFile(name, sha, bytes.Length, Decode(name, bytes).Then(text => SweepTextParser.Parse(name, text)));
+        var text = Decode(name, bytes);
+        if (!text.IsSuccess)
+        {
+            return new SweepFile(name, sha, bytes.Length, Result<SweepTable>.Failure(text.Problems), []);
+        }
+
+        var table = SweepTextParser.Parse(name, text.Value);
+        var metadata = table.IsSuccess ? table.Value.Metadata : SweepTextParser.ScanMetadata(text.Value);
+        return new SweepFile(name, sha, bytes.Length, table, metadata);
     }
 
     public static Result<string> Decode(string name, ReadOnlySpan<byte> bytes)

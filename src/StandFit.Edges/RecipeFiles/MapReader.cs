@@ -148,7 +148,7 @@ public sealed partial class MapReader
             return null;
         }
 
-        if (scalar.Plain && (scalar.Text.Length == 0 || scalar.Text == "~" || scalar.Text.Equals("null", StringComparison.OrdinalIgnoreCase)))
+        if (scalar.Text.Trim().Length == 0 || (scalar.Plain && (scalar.Text == "~" || scalar.Text.Equals("null", StringComparison.OrdinalIgnoreCase))))
         {
             sink.Add(RecipeCodes.BadValue, Messages.EmptyValue(where, "a text"), node);
             return null;

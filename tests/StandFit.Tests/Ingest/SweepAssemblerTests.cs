@@ -303,11 +303,13 @@ public sealed class SweepAssemblerTests
     }
 
     [Fact]
-    public void An_iso_test_start_without_an_offset_is_taken_as_utc()
+    public void An_iso_test_start_without_a_zone_is_rejected_rather_than_guessed()
     {
-        var identity = SweepAssembler.ReadIdentity(Table("# serial: SN-1\n# test start: 2026-11-30T22:14:05\nx,y\n1,2\n")).Value;
+        var identity = SweepAssembler.ReadIdentity(Table("# serial: SN-1\n# test start: 2026-11-30T22:14:05\nx,y\n1,2\n"));
 
-        Assert.Equal(new DateTime(2026, 11, 30, 22, 14, 5, DateTimeKind.Utc), identity.TestStartUtc);
+        Assert.False(identity.IsSuccess);
+        Assert.Equal("input.bad_metadata", identity.Problems[0].Code);
+        Assert.Equal(2, identity.Problems[0].Location.Line);
     }
 
     [Theory]
