@@ -16,8 +16,9 @@ namespace StandFit.Core.Evaluation;
 /// </summary>
 public sealed class UnitEvaluation
 {
-    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult? runs, Verdict verdict, Problem? problem)
+    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult? runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Problem? problem)
     {
+        Figures = figures;
         SourceName = sourceName;
         Identity = identity;
         Recipe = recipe;
@@ -44,6 +45,9 @@ public sealed class UnitEvaluation
 
     public RunsTestResult? Runs { get; }
 
+    /// <summary>Every figure a limit can name (empty when the unit was not fitted).</summary>
+    public ImmutableDictionary<string, FigureValue> Figures { get; }
+
     public Verdict Verdict { get; }
 
     /// <summary>Why the unit was rejected, when it was.</summary>
@@ -53,10 +57,14 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, Verdict verdict) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, runs, verdict, null);
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, runs, figures, verdict, null);
+
+    /// <summary>A unit whose sweep failed a data-quality gate: not fitted, ruled retest.</summary>
+    internal static UnitEvaluation Screened(string sourceName, Recipe recipe, Sweep sweep, Verdict verdict) =>
+        new(sourceName, sweep.Identity, recipe, sweep, null, [], null, ImmutableDictionary<string, FigureValue>.Empty, verdict, null);
 
     /// <summary>A unit that cannot be judged; whatever is known of it is kept.</summary>
     public static UnitEvaluation Rejected(string sourceName, Problem problem, UnitIdentity? identity = null, Recipe? recipe = null, Sweep? sweep = null) =>
-        new(sourceName, identity, recipe, sweep, null, [], null, Verdict.Rejected(problem), problem);
+        new(sourceName, identity, recipe, sweep, null, [], null, ImmutableDictionary<string, FigureValue>.Empty, Verdict.Rejected(problem), problem);
 }

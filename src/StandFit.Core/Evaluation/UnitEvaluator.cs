@@ -2,7 +2,9 @@ using StandFit.Core.Diagnostics;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
+using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
+using StandFit.Core.Screening;
 using StandFit.Core.Uncertainty;
 
 namespace StandFit.Core.Evaluation;
@@ -27,7 +29,19 @@ public static class UnitEvaluator
 
     public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null)
     {
+        // A sweep no fit can use is rejected; a sweep that fails a data-quality gate is ruled retest.
         var model = modelOverride ?? recipe.Model;
+        if (LeastSquaresFitter.CheckFeasible(model, sweep.Stimulus, sourceName) is { } infeasible)
+        {
+            return UnitEvaluation.Rejected(sourceName, infeasible, sweep.Identity, recipe, sweep);
+        }
+
+        var screened = SweepScreen.Screen(sweep, recipe.Sweep);
+        if (screened.Count > 0)
+        {
+            return UnitEvaluation.Screened(sourceName, recipe, sweep, Verdict.From(screened));
+        }
+
         var fitted = LeastSquaresFitter.Fit(model, sweep.Stimulus, sweep.Output, sourceName);
         if (!fitted.IsSuccess)
         {
@@ -38,17 +52,18 @@ public static class UnitEvaluator
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
+        var figures = FigureTable.Compute(fit, parameters, runs, recipe);
         var findings = new List<Finding>();
         foreach (var limit in recipe.Limits)
         {
-            var parameter = parameters.FirstOrDefault(p => p.Name == limit.Figure);
-            if (parameter is null)
+            if (!figures.TryGetValue(limit.Figure, out var figure))
             {
-                // Only reachable with a model override that lacks the recipe's figure.
+                // A model override without the recipe's figure, or a runs figure on residuals without signs.
+                findings.Add(new Finding(ReasonCodes.LimitNotEvaluated.Code, ReasonCodes.LimitNotEvaluated.Kind, Messages.LimitNotEvaluated(limit.Figure)));
                 continue;
             }
 
-            findings.Add(GuardedAcceptance.Judge(limit, parameter.Low, parameter.High, recipe.UnitOf(limit.Figure)));
+            findings.Add(LimitJudge.Judge(limit, figure, recipe.Confidence));
         }
 
         if (recipe.RunsGate is { } gate)
@@ -56,6 +71,6 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, Verdict.From(findings));
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, figures, Verdict.From(findings));
     }
 }

@@ -15,14 +15,12 @@ public static class LeastSquaresFitter
 
     private const int RefinementSteps = 2;
 
-    /// <summary>Fits <paramref name="model"/> to the points; problems come back as values (reason codes fit.*).</summary>
-    public static Result<FitResult> Fit(LinearModel model, ImmutableArray<double> x, ImmutableArray<double> y, string sourceName = "")
+    /// <summary>
+    /// Whether any fit of <paramref name="model"/> is possible on these stimulus values: enough points
+    /// for error bars, a stimulus that moves, enough distinct set points. Null when it is.
+    /// </summary>
+    public static Problem? CheckFeasible(LinearModel model, ImmutableArray<double> x, string sourceName = "")
     {
-        if (x.Length != y.Length)
-        {
-            throw new ArgumentException("Stimulus and output need the same number of points.");
-        }
-
         var n = x.Length;
         var p = model.ParameterCount;
         var where = SourceLocation.WholeFile(sourceName);
@@ -44,10 +42,33 @@ public static class LeastSquaresFitter
         }
 
         var distinct = CountDistinct(x);
-        if (distinct < p)
+        return distinct < p ? new Problem(ReasonCodes.FitRankDeficient.Code, Messages.RankDeficient(distinct, p), where) : null;
+    }
+
+    /// <summary>Fits <paramref name="model"/> to the points; problems come back as values (reason codes fit.*).</summary>
+    public static Result<FitResult> Fit(LinearModel model, ImmutableArray<double> x, ImmutableArray<double> y, string sourceName = "")
+    {
+        if (x.Length != y.Length)
         {
-            return new Problem(ReasonCodes.FitRankDeficient.Code, Messages.RankDeficient(distinct, p), where);
+            throw new ArgumentException("Stimulus and output need the same number of points.");
         }
+
+        if (CheckFeasible(model, x, sourceName) is { } infeasible)
+        {
+            return infeasible;
+        }
+
+        var n = x.Length;
+        var p = model.ParameterCount;
+        var where = SourceLocation.WholeFile(sourceName);
+        double min = double.PositiveInfinity, max = double.NegativeInfinity;
+        foreach (var v in x)
+        {
+            min = Math.Min(min, v);
+            max = Math.Max(max, v);
+        }
+
+        var distinct = CountDistinct(x);
 
         var scaling = model.ChooseScaling(min, max);
         var basis = new double[n * p]; // column-major

@@ -25,6 +25,12 @@ public abstract class LinearModel
     /// <summary>The model's value in double-double arithmetic (for the fitter's refinement step).</summary>
     internal abstract DoubleDouble EvaluatePrecise(ReadOnlySpan<double> parameters, double x);
 
+    /// <summary>The basis functions at natural stimulus x (one value per parameter): the gradient of f(x) with respect to the parameters.</summary>
+    public abstract void FillNaturalBasis(double x, Span<double> row);
+
+    /// <summary>The derivatives d f_j / dx at natural stimulus x: the gradient of the sensitivity f'(x) with respect to the parameters.</summary>
+    public abstract void FillNaturalBasisDerivative(double x, Span<double> row);
+
     /// <summary>The centre c and half-range h of the scaled stimulus z = (x - c) / h.</summary>
     public abstract StimulusScaling ChooseScaling(double min, double max);
 

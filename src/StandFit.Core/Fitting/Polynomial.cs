@@ -80,6 +80,23 @@ public sealed class Polynomial : LinearModel
         return _lowest == 0 ? sum : sum * x;
     }
 
+    public override void FillNaturalBasis(double x, Span<double> row)
+    {
+        for (var j = 0; j < row.Length; j++)
+        {
+            row[j] = IntegerPower(x, j + _lowest);
+        }
+    }
+
+    public override void FillNaturalBasisDerivative(double x, Span<double> row)
+    {
+        for (var j = 0; j < row.Length; j++)
+        {
+            var k = j + _lowest;
+            row[j] = k == 0 ? 0.0 : k * IntegerPower(x, k - 1);
+        }
+    }
+
     public override StimulusScaling ChooseScaling(double min, double max)
     {
         if (_lowest == 0)

@@ -1,8 +1,10 @@
 namespace StandFit.Core.Judging;
 
 /// <summary>
-/// Specification limits on one figure (a parameter such as gain or offset), in the figure's own
-/// units. Either bound may be open. Limits are inclusive: a value on a limit conforms.
+/// Specification limits on one figure (a parameter such as gain or offset, a derived figure, an
+/// uncertainty or a diagnostic), in the figure's own units, with the decision rule that applies.
+/// Either bound may be open. Limits are inclusive: a value on a limit conforms. A guarded limit
+/// without a <see cref="Guard"/> uses the recipe's confidence level.
 /// </summary>
 public sealed record FigureLimit
 {
@@ -29,4 +31,9 @@ public sealed record FigureLimit
     public double? Min { get; }
 
     public double? Max { get; }
+
+    public DecisionRule Rule { get; init; } = DecisionRule.Guarded;
+
+    /// <summary>The guard band of a guarded limit; null means the recipe's confidence level.</summary>
+    public GuardBand? Guard { get; init; }
 }

@@ -20,7 +20,11 @@ public enum Ruling
 }
 
 /// <summary>One reason behind a ruling: a stable code, what it does to the ruling, and a sentence with its numbers.</summary>
-public sealed record Finding(string Code, ReasonKind Kind, string Sentence);
+public sealed record Finding(string Code, ReasonKind Kind, string Sentence)
+{
+    /// <summary>For a limit's finding, what the limit decided (value, U, interval, zone, conditional state).</summary>
+    public LimitResult? Limit { get; init; }
+}
 
 /// <summary>A ruling and its reasons, most severe first (reject, fail, retest, then the checks that passed).</summary>
 public sealed record Verdict(Ruling Ruling, ImmutableArray<Finding> Reasons)

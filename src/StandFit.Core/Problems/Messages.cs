@@ -58,6 +58,17 @@ public static class Messages
         : F($"'{shown}' in {where} is read by YAML 1.1 tools as a true/false value, not as {kind}. Write {kind} here.");
     public static string OctalTrap(string where, string shown) => F($"'{shown}' in {where} has a leading zero, which YAML 1.1 tools read as an octal number. Write it without the leading zero, or in quotes if it is text.");
     public static string Base60Trap(string where, string shown) => F($"'{shown}' in {where} looks like a base-60 number (YAML 1.1 reads 1:30 as 90). Write a plain decimal number, or quote it if it is text.");
+    public static string NotABoolean(string where, string shown) => F($"{where} must be true or false, not '{shown}'.");
+    public static string GuardedNeedsUncertainty(string figure) => F($"limit on '{figure}' uses the guarded rule, but '{figure}' has no uncertainty of its own; give it 'rule: simple'.");
+    public static string NeedsLegColumn(string where) => F($"{where} needs 'columns.leg' so the legs can be told apart.");
+    public static string NeedsRange(string where) => F($"{where} needs 'sweep.range' (the nominal stimulus range).");
+    public static string DecisionNeeded() => "the recipe has limits but no 'decision' section; say 'decision: {{ rule: guarded }}' or 'rule: simple' so the decision rule is agreed, not assumed.";
+    public static string CoverageWithoutGuarded(string where) => F($"{where} gives a coverage factor but the rule is 'simple'; remove 'coverage_factor' or use 'rule: guarded'.");
+    public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at' or 'value_at'.");
+    public static string DerivedNameClash(string name) => F($"derived figure '{name}' has the name of a figure the fit already produces; choose another name.");
+    public static string PartsNeeded() => "a recipe that is not 'family: true' needs 'parts' (the part numbers it judges).";
+    public static string FamilyNotFound(string name, IEnumerable<string> known) => F($"'extends: {name}' names no family recipe in this folder; the family recipes are: {string.Join(", ", known)}.");
+    public static string FamilyCycle(string name) => F($"'extends: {name}' leads back to this recipe; a family chain must end.");
     public static string NotAnInteger(string where, string shown) => F($"{where} must be a whole number, not '{shown}'.");
     public static string OutOfRange(string where, string shown, string range) => F($"{where} is {shown}; it must be {range}.");
     public static string UnknownChoice(string where, string shown, IEnumerable<string> choices, string? suggestion) =>
@@ -72,6 +83,14 @@ public static class Messages
     public static string DuplicatePart(string part, string otherFile) => F($"part '{part}' is also listed by recipe file {otherFile}; a part must have exactly one recipe.");
     public static string UnreadableFile(string detail) => F($"the file cannot be read: {detail}.");
     public static string ConfigFolderMissing(string key, string path) => F($"folders.{key} is '{path}', which does not exist and cannot be created. Fix the path or create the folder.");
+
+    // ---- data-quality gates -----------------------------------------------------------------
+    public static string SweepTooFewPoints(int points, int min) => F($"the sweep has {points} points, fewer than the {min} the recipe expects; test the unit again.");
+    public static string SweepSpanShort(double covered, double percent, double min, double max) => F($"the stimulus covers {Numbers.Format(covered, 4)} % of the range [{Numbers.Format(min)}, {Numbers.Format(max)}], less than the {Numbers.Format(percent)} % the recipe expects; check the stand's sweep and test the unit again.");
+    public static string SweepLegMissing(string leg) => F($"the sweep has no {leg} leg, which the recipe expects; test the unit again.");
+    public static string SweepLegNotMonotonic(string leg, int line, double from, double to) => F($"on the {leg} leg the stimulus turns back from {Numbers.Format(from)} to {Numbers.Format(to)} (line {line}); check the stand's actuator and test the unit again.");
+    public static string SweepOutputSaturated(int count, double value) => F($"{count} points in a row read exactly {Numbers.Format(value)} at the end of the output range: the output looks clipped or saturated; check the unit and the stand's input range.");
+    public static string SweepDuplicateRows(int first, int second) => F($"line {second} repeats line {first} exactly (stimulus, output and leg): the stand logged a row twice; test the unit again.");
 
     // ---- fits --------------------------------------------------------------------------------
     public static string TooFewPoints(int points, int parameters) => F($"{points} points cannot give error bars for {parameters} parameters (at least {parameters + 1} are needed). Check the sweep.");
@@ -107,6 +126,42 @@ public static class Messages
             "below" => F($"{figure} CI {interval}{u} lies below the lower limit {Numbers.Format(limit, digits)}"),
             "straddles" => F($"{figure} CI {interval}{u} straddles a limit of {limits}: the measurement cannot decide"),
             _ => F($"{figure} CI {interval}{u} lies inside the limits {limits}"),
+        };
+    }
+
+    public static string LimitNotEvaluated(string figure) => F($"the limit on '{figure}' cannot decide: the figure could not be computed for this unit");
+
+    public static string SimpleAcceptance() => "simple acceptance";
+
+    public static string GuardByCoverage(double k) => F($"guarded, U = {Numbers.Format(k, 3)} u");
+
+    public static string GuardByConfidence(double level, int? df) =>
+        df is { } d ? F($"guarded, U = t({Numbers.Format(level * 100, 6)} %, {d} df) u") : F($"guarded, U = z({Numbers.Format(level * 100, 6)} %) u");
+
+    public static string LimitDecision(Judging.LimitResult r, string unit, string basis)
+    {
+        var digits = 5;
+        foreach (var bound in new[] { r.Min, r.Max })
+        {
+            if (bound is { } edge)
+            {
+                digits = Math.Max(digits, Math.Max(Numbers.DigitsToTellApart(r.Low, edge), Numbers.DigitsToTellApart(r.High, edge)));
+                digits = Math.Max(digits, Numbers.DigitsToTellApart(r.Value, edge));
+            }
+        }
+
+        string N(double v) => Numbers.Format(v, digits);
+        var u = unit.Length == 0 ? "" : " " + unit;
+        var limits = F($"[{(r.Min is { } a ? N(a) : "-inf")}, {(r.Max is { } b ? N(b) : "+inf")}]");
+        var subject = r.Rule == Judging.DecisionRule.Simple
+            ? F($"{r.Figure} {N(r.Value)}{u}")
+            : F($"{r.Figure} {N(r.Value)} +/- {Numbers.Format(r.ExpandedUncertainty, 3)}{u} = [{N(r.Low)}, {N(r.High)}]");
+        return r.Zone switch
+        {
+            Judging.LimitZone.Above => F($"{subject} lies above the upper limit {N(r.Max!.Value)} ({basis})"),
+            Judging.LimitZone.Below => F($"{subject} lies below the lower limit {N(r.Min!.Value)} ({basis})"),
+            Judging.LimitZone.Straddles => F($"{subject} straddles a limit of {limits} ({basis}): undecided, conditional {r.Conditional}"),
+            _ => F($"{subject} lies inside the limits {limits} ({basis})"),
         };
     }
 

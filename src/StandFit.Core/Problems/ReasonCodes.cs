@@ -49,6 +49,14 @@ public static class ReasonCodes
     public static readonly ReasonCode InputBadLeg = new("input.bad_leg", ReasonKind.Reject, "A leg cell is neither 'up' nor 'down'.");
     public static readonly ReasonCode InputNoRecipe = new("input.no_recipe", ReasonKind.Reject, "No recipe lists the unit's part.");
 
+    // Data-quality gates, before any fit: the measurement is in doubt, so the unit is tested again.
+    public static readonly ReasonCode SweepTooFewPoints = new("sweep.too_few_points", ReasonKind.Retest, "The sweep has fewer points than the recipe's 'sweep.min_points'.");
+    public static readonly ReasonCode SweepSpanShort = new("sweep.span_short", ReasonKind.Retest, "The stimulus covers less of the nominal range than the recipe's 'sweep.span_percent'.");
+    public static readonly ReasonCode SweepLegMissing = new("sweep.leg_missing", ReasonKind.Retest, "A leg the recipe expects ('sweep.legs') is not in the sweep.");
+    public static readonly ReasonCode SweepLegNotMonotonic = new("sweep.leg_not_monotonic", ReasonKind.Retest, "Within a leg the stimulus turns back by more than the recipe's tolerance.");
+    public static readonly ReasonCode SweepOutputSaturated = new("sweep.output_saturated", ReasonKind.Retest, "A run of identical output values at the lowest or highest output: clipped or saturated output.");
+    public static readonly ReasonCode SweepDuplicateRows = new("sweep.duplicate_rows", ReasonKind.Retest, "Two points have the same stimulus, output and leg: a duplicated row.");
+
     // Fits that cannot be made.
     public static readonly ReasonCode FitTooFewPoints = new("fit.too_few_points", ReasonKind.Reject, "Fewer points than the model has parameters, or no degree of freedom left for an error bar.");
     public static readonly ReasonCode FitZeroStimulusSpread = new("fit.zero_stimulus_spread", ReasonKind.Reject, "All stimulus values are equal: no curve can be fitted.");
@@ -64,6 +72,8 @@ public static class ReasonCodes
     public static readonly ReasonCode LimitBelow = new("{figure}.below_limit", ReasonKind.Fail, "The figure's whole confidence interval lies below its lower limit.");
     public static readonly ReasonCode LimitStraddles = new("{figure}.straddles_limit", ReasonKind.Retest, "The figure's confidence interval contains a limit: the measurement cannot decide.");
 
+    public static readonly ReasonCode LimitNotEvaluated = new("limit.not_evaluated", ReasonKind.Retest, "A limit's figure could not be computed for this unit (for example a runs-test figure when the residuals have no signs); the limit cannot decide.");
+
     // Residual-structure gates.
     public static readonly ReasonCode RunsOk = new("residuals.runs_ok", ReasonKind.Pass, "The runs test on the signs of the residuals in stimulus order finds no structure.");
     public static readonly ReasonCode RunsNotApplicable = new("residuals.runs_not_applicable", ReasonKind.Pass, "The residuals have too few signs of each kind for a runs test (for example an exact fit); the gate does not judge.");
@@ -74,9 +84,10 @@ public static class ReasonCodes
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
         InputDuplicateMetadata, InputBadSerial, InputNoHeader, InputDuplicateColumn, InputNoRows,
         InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputNoRecipe,
+        SweepTooFewPoints, SweepSpanShort, SweepLegMissing, SweepLegNotMonotonic, SweepOutputSaturated, SweepDuplicateRows,
         FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitNonFinite,
         InternalError,
-        LimitWithin, LimitAbove, LimitBelow, LimitStraddles,
+        LimitWithin, LimitAbove, LimitBelow, LimitStraddles, LimitNotEvaluated,
         RunsOk, RunsNotApplicable, RunsStructure,
     ];
 

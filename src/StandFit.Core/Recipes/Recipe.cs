@@ -1,7 +1,9 @@
 using System.Collections.Immutable;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
+using StandFit.Core.Evaluation;
 using StandFit.Core.Judging;
+using StandFit.Core.Screening;
 using StandFit.Core.Uncertainty;
 
 namespace StandFit.Core.Recipes;
@@ -41,14 +43,6 @@ public sealed class Recipe
         string sourceFile)
     {
         ArgumentException.ThrowIfNullOrWhiteSpace(name);
-        foreach (var limit in limits)
-        {
-            if (model.ParameterNames.IndexOf(limit.Figure) < 0)
-            {
-                throw new ArgumentException($"Model {model.Name} has no figure '{limit.Figure}'.", nameof(limits));
-            }
-        }
-
         Name = name;
         Version = version;
         Parts = parts;
@@ -81,6 +75,21 @@ public sealed class Recipe
     public ImmutableArray<FigureLimit> Limits { get; }
 
     public RunsGate? RunsGate { get; }
+
+    /// <summary>Figures computed from the curve at stimulus points (sensitivity, value), which limits can name.</summary>
+    public ImmutableArray<DerivedFigure> Derived { get; init; } = [];
+
+    /// <summary>The data-quality gates checked before any fit.</summary>
+    public SweepExpectations Sweep { get; init; } = SweepExpectations.None;
+
+    /// <summary>File-name patterns (<c>*</c> and <c>?</c> wildcards) that select this recipe for files without part metadata.</summary>
+    public ImmutableArray<string> FilePatterns { get; init; } = [];
+
+    /// <summary>The family recipe this one extends, by name; null for a recipe that stands alone.</summary>
+    public string? Extends { get; init; }
+
+    /// <summary>True for a family recipe: others extend it; it judges no part itself.</summary>
+    public bool IsFamily { get; init; }
 
     /// <summary>SHA-256 of the recipe file's bytes, lower-case hex: which exact recipe made a ruling.</summary>
     public string ContentHash { get; }

@@ -108,6 +108,24 @@ public sealed partial class MapReader
         return (int)value.Value;
     }
 
+    /// <summary>A plain <c>true</c> or <c>false</c>; yes/no/on/off and anything else are refused.</summary>
+    public bool? Boolean(string key, bool required)
+    {
+        var node = Require(key, required);
+        if (node is null)
+        {
+            return null;
+        }
+
+        if (node is YamlScalar { Plain: true } scalar && scalar.Text is "true" or "false")
+        {
+            return scalar.Text == "true";
+        }
+
+        Sink.Add(RecipeCodes.BadValue, Messages.NotABoolean(Path(key), node is YamlScalar s ? s.Text : "(not a value)"), node);
+        return null;
+    }
+
     public ImmutableArray<(string Text, YamlNode Node)> TextList(string key, bool required)
     {
         var node = Require(key, required);

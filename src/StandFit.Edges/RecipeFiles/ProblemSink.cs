@@ -14,7 +14,7 @@ public sealed class ProblemSink(string file)
     public bool HasProblems => _problems.Count > 0;
 
     public void Add(string code, string message, YamlNode? at) =>
-        _problems.Add(new Problem(code, message, at is null ? SourceLocation.WholeFile(File) : SourceLocation.At(File, at.Line, at.Column)));
+        _problems.Add(new Problem(code, message, at is null ? SourceLocation.WholeFile(File) : SourceLocation.At(at.File ?? File, at.Line, at.Column)));
 
     public void Add(Problem problem) => _problems.Add(problem);
 }

@@ -1,28 +1,33 @@
 using System.Collections.Immutable;
 using System.Globalization;
+using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
 using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
+using StandFit.Core.Screening;
 using StandFit.Core.Uncertainty;
 
 namespace StandFit.Edges.RecipeFiles;
 
 /// <summary>
-/// The recipe language: binds a recipe file's YAML tree to the core's immutable <see cref="Recipe"/>,
-/// reporting every problem of the file at once. docs/recipes.md documents each key.
+/// The recipe language (described by <see cref="RecipeSchema"/>): binds a recipe's YAML tree to the
+/// core's immutable <see cref="Recipe"/>, reporting every problem of the file at once.
+/// docs/recipes.md documents each key.
 /// </summary>
 public static class RecipeBinder
 {
-    public static readonly ImmutableArray<string> TopKeys = ["recipe", "version", "parts", "columns", "units", "model", "confidence", "limits", "gates"];
-    public static readonly ImmutableArray<string> ColumnKeys = ["stimulus", "output", "leg", "order"];
-    public static readonly ImmutableArray<string> UnitKeys = ["stimulus", "output"];
-    public static readonly ImmutableArray<string> ModelKeys = ["type", "degree"];
-    public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial"];
-    public static readonly ImmutableArray<string> LimitKeys = ["min", "max"];
-    public static readonly ImmutableArray<string> GateKeys = ["runs_test"];
-    public static readonly ImmutableArray<string> RunsGateKeys = ["p_min"];
+    public static readonly ImmutableArray<string> TopKeys = RecipeSchema.Root.ChildNames;
+    public static readonly ImmutableArray<string> ColumnKeys = RecipeSchema.Root.Child("columns").ChildNames;
+    public static readonly ImmutableArray<string> UnitKeys = RecipeSchema.Root.Child("units").ChildNames;
+    public static readonly ImmutableArray<string> ModelKeys = RecipeSchema.Root.Child("model").ChildNames;
+    public static readonly ImmutableArray<string> ModelTypes = RecipeSchema.ModelTypes;
+    public static readonly ImmutableArray<string> LimitKeys = RecipeSchema.Root.Child("limits").ChildNames;
+    public static readonly ImmutableArray<string> GateKeys = RecipeSchema.Root.Child("gates").ChildNames;
+    public static readonly ImmutableArray<string> RunsGateKeys = RecipeSchema.Root.Child("gates").Child("runs_test").ChildNames;
+
+    private static readonly KeySpec Root = RecipeSchema.Root;
 
     /// <summary>Reads one recipe file's text. <paramref name="file"/> is the name shown in messages.</summary>
     public static Result<Recipe> Bind(string file, string text, string contentHash)
@@ -40,15 +45,32 @@ public static class RecipeBinder
             return Result<Recipe>.Failure(sink.Problems);
         }
 
+        return Bind(root, sink, contentHash);
+    }
+
+    /// <summary>Binds a recipe tree (a family's keys already merged in); problems go to <paramref name="sink"/>.</summary>
+    public static Result<Recipe> Bind(YamlMap root, ProblemSink sink, string contentHash)
+    {
         var top = new MapReader(root, "the file", sink, TopKeys);
         var name = top.Text("recipe", required: true);
         var version = top.Text("version", required: true);
-        var parts = top.TextList("parts", required: true);
+        var family = top.Boolean("family", required: false) ?? false;
+        var extends = top.Text("extends", required: false);
+        var parts = top.TextList("parts", required: false);
+        if (!family && !top.Has("parts") && !root.Entries.Any(e => e.Key.Text == "parts"))
+        {
+            sink.Add(RecipeCodes.MissingKey, Messages.PartsNeeded(), root);
+        }
+
+        var patterns = top.TextList("file_patterns", required: false);
         var columns = ReadColumns(top);
         var units = ReadUnits(top);
         var model = ReadModel(top);
         var confidence = ReadConfidence(top);
-        var limits = ReadLimits(top, model);
+        var derived = ReadDerived(top, model);
+        var decision = ReadDecision(top);
+        var limits = ReadLimits(top, model, derived, decision);
+        var sweep = ReadSweep(top, columns);
         var runsGate = ReadGates(top);
 
         if (sink.HasProblems || name is null || version is null || columns is null || model is null || confidence is null)
@@ -56,18 +78,14 @@ public static class RecipeBinder
             return Result<Recipe>.Failure(sink.Problems);
         }
 
-        return new Recipe(
-            name,
-            version,
-            [.. parts.Select(p => p.Text)],
-            columns,
-            units ?? ColumnUnits.None,
-            model,
-            confidence.Value,
-            limits,
-            runsGate,
-            contentHash,
-            file);
+        return new Recipe(name, version, [.. parts.Select(p => p.Text)], columns, units ?? ColumnUnits.None, model, confidence.Value, limits, runsGate, contentHash, sink.File)
+        {
+            Derived = derived,
+            Sweep = sweep,
+            FilePatterns = [.. patterns.Select(p => p.Text)],
+            Extends = extends,
+            IsFamily = family,
+        };
     }
 
     private static ColumnMap? ReadColumns(MapReader top)
@@ -155,7 +173,111 @@ public static class RecipeBinder
         return level;
     }
 
-    private static ImmutableArray<FigureLimit> ReadLimits(MapReader top, LinearModel? model)
+    private sealed record Decision(DecisionRule Rule, GuardBand? Guard);
+
+    private static Decision? ReadDecision(MapReader top)
+    {
+        var section = top.Map("decision", Root.Child("decision").ChildNames, required: false);
+        if (section is null)
+        {
+            return null;
+        }
+
+        var rule = ReadRule(section, required: true);
+        var guard = ReadCoverage(section, rule);
+        return rule is null ? null : new Decision(rule.Value, guard);
+    }
+
+    private static DecisionRule? ReadRule(MapReader section, bool required)
+    {
+        var text = section.Text("rule", required);
+        switch (text)
+        {
+            case null:
+                return null;
+            case "guarded":
+                return DecisionRule.Guarded;
+            case "simple":
+                return DecisionRule.Simple;
+            default:
+                section.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(section.Path("rule"), text, RecipeSchema.Rules, Suggestions.Closest(text, RecipeSchema.Rules)), section.Node("rule"));
+                return null;
+        }
+    }
+
+    private static GuardBand? ReadCoverage(MapReader section, DecisionRule? rule)
+    {
+        var spec = CoverageSpec();
+        var k = section.Number("coverage_factor", required: false);
+        if (k is null)
+        {
+            return null;
+        }
+
+        if (rule == DecisionRule.Simple)
+        {
+            section.Sink.Add(RecipeCodes.Contradiction, Messages.CoverageWithoutGuarded(section.Where), section.Node("coverage_factor"));
+            return null;
+        }
+
+        if (k.Value < spec.Minimum || k.Value > spec.Maximum)
+        {
+            section.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(section.Path("coverage_factor"), Numbers.Format(k.Value), "from 1 to 10 (2 is common)"), section.Node("coverage_factor"));
+            return null;
+        }
+
+        return GuardBand.WithCoverageFactor(k.Value);
+    }
+
+    private static KeySpec CoverageSpec() => Root.Child("decision").Child("coverage_factor");
+
+    private static ImmutableArray<DerivedFigure> ReadDerived(MapReader top, LinearModel? model)
+    {
+        var section = top.Map("derived", knownKeys: null, required: false);
+        if (section is null)
+        {
+            return [];
+        }
+
+        var builder = ImmutableArray.CreateBuilder<DerivedFigure>();
+        var fitFigures = model is null ? ImmutableDictionary<string, bool>.Empty : FigureTable.Names(model, []);
+        foreach (var entry in section.Entries)
+        {
+            var name = entry.Key.Text;
+            if (fitFigures.ContainsKey(name))
+            {
+                section.Sink.Add(RecipeCodes.Contradiction, Messages.DerivedNameClash(name), entry.Key);
+                continue;
+            }
+
+            var figure = section.Map(name, Root.Child("derived").ChildNames, required: true);
+            if (figure is null)
+            {
+                continue;
+            }
+
+            var sensitivity = figure.Number("sensitivity_at", required: false);
+            var value = figure.Number("value_at", required: false);
+            if (figure.Has("sensitivity_at") == figure.Has("value_at"))
+            {
+                figure.Sink.Add(RecipeCodes.BadValue, Messages.DerivedNeedsOneKey(figure.Where), entry.Value);
+                continue;
+            }
+
+            if (sensitivity is { } s)
+            {
+                builder.Add(new DerivedFigure(name, DerivedKind.SensitivityAt, s));
+            }
+            else if (value is { } v)
+            {
+                builder.Add(new DerivedFigure(name, DerivedKind.ValueAt, v));
+            }
+        }
+
+        return builder.ToImmutable();
+    }
+
+    private static ImmutableArray<FigureLimit> ReadLimits(MapReader top, LinearModel? model, ImmutableArray<DerivedFigure> derived, Decision? decision)
     {
         var limits = top.Map("limits", knownKeys: null, required: false);
         if (limits is null)
@@ -163,13 +285,20 @@ public static class RecipeBinder
             return [];
         }
 
+        if (decision is null && !top.Has("decision") && limits.Entries.Any())
+        {
+            limits.Sink.Add(RecipeCodes.MissingKey, Messages.DecisionNeeded(), top.KeyNode("limits"));
+        }
+
+        var figures = model is null ? null : FigureTable.Names(model, derived);
         var builder = ImmutableArray.CreateBuilder<FigureLimit>();
         foreach (var entry in limits.Entries)
         {
             var figure = entry.Key.Text;
-            if (model is not null && model.ParameterNames.IndexOf(figure) < 0)
+            var known = figures is null || figures.ContainsKey(figure);
+            if (!known)
             {
-                limits.Sink.Add(RecipeCodes.UnknownFigure, Messages.UnknownFigure(figure, model.Name, model.ParameterNames), entry.Key);
+                limits.Sink.Add(RecipeCodes.UnknownFigure, Messages.UnknownFigure(figure, model!.Name, FigureOrder(model, derived)), entry.Key);
             }
 
             var bounds = limits.Map(figure, LimitKeys, required: true);
@@ -180,6 +309,9 @@ public static class RecipeBinder
 
             var min = bounds.Number("min", required: false);
             var max = bounds.Number("max", required: false);
+            var ownRule = ReadRule(bounds, required: false);
+            var rule = ownRule ?? decision?.Rule;
+            var guard = ReadCoverage(bounds, rule) ?? (ownRule is null ? decision?.Guard : null);
             var hasMin = bounds.Has("min");
             var hasMax = bounds.Has("max");
             if (!hasMin && !hasMax)
@@ -188,7 +320,7 @@ public static class RecipeBinder
                 continue;
             }
 
-            if ((hasMin && min is null) || (hasMax && max is null))
+            if ((hasMin && min is null) || (hasMax && max is null) || rule is null)
             {
                 continue; // already reported
             }
@@ -199,13 +331,117 @@ public static class RecipeBinder
                 continue;
             }
 
-            if (model is not null && model.ParameterNames.IndexOf(figure) >= 0)
+            if (figures is not null && figures.TryGetValue(figure, out var hasUncertainty) && !hasUncertainty && rule == DecisionRule.Guarded)
             {
-                builder.Add(new FigureLimit(figure, min, max));
+                bounds.Sink.Add(RecipeCodes.Contradiction, Messages.GuardedNeedsUncertainty(figure), entry.Key);
+                continue;
+            }
+
+            if (known && figures is not null)
+            {
+                builder.Add(new FigureLimit(figure, min, max) { Rule = rule.Value, Guard = rule == DecisionRule.Guarded ? guard : null });
             }
         }
 
         return builder.ToImmutable();
+    }
+
+    /// <summary>The figures a recipe can limit, in the order a reader expects: parameters, half-widths, derived, fit figures.</summary>
+    private static IEnumerable<string> FigureOrder(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
+        model.ParameterNames
+            .Concat(model.ParameterNames.Select(p => p + FigureTable.HalfWidthSuffix))
+            .Concat(derived.Select(d => d.Name))
+            .Concat(FigureTable.FitFigures);
+
+    private static SweepExpectations ReadSweep(MapReader top, ColumnMap? columns)
+    {
+        var spec = Root.Child("sweep");
+        var sweep = top.Map("sweep", spec.ChildNames, required: false);
+        if (sweep is null)
+        {
+            return SweepExpectations.None;
+        }
+
+        var minPoints = sweep.Integer("min_points", required: false);
+        if (minPoints is < 2)
+        {
+            sweep.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(sweep.Path("min_points"), minPoints.Value.ToString(CultureInfo.InvariantCulture), "a whole number of at least 2"), sweep.Node("min_points"));
+        }
+
+        StimulusRange? range = null;
+        var rangeMap = sweep.Map("range", spec.Child("range").ChildNames, required: false);
+        if (rangeMap is not null)
+        {
+            var lo = rangeMap.Number("min", required: true);
+            var hi = rangeMap.Number("max", required: true);
+            if (lo is { } a && hi is { } b)
+            {
+                if (a >= b)
+                {
+                    rangeMap.Sink.Add(RecipeCodes.Contradiction, Messages.MinAboveMax(rangeMap.Where, Numbers.Format(a), Numbers.Format(b)), rangeMap.Node("min"));
+                }
+                else
+                {
+                    range = new StimulusRange(a, b);
+                }
+            }
+        }
+
+        var span = sweep.Number("span_percent", required: false);
+        if (span is { } sp && !(sp is > 0 and <= 100))
+        {
+            sweep.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(sweep.Path("span_percent"), Numbers.Format(sp), "above 0 and at most 100"), sweep.Node("span_percent"));
+        }
+
+        if (span is not null && rangeMap is null)
+        {
+            sweep.Sink.Add(RecipeCodes.MissingKey, Messages.NeedsRange(sweep.Path("span_percent")), sweep.Node("span_percent"));
+        }
+
+        var legs = ImmutableArray.CreateBuilder<Leg>();
+        foreach (var (text, node) in sweep.TextList("legs", required: false))
+        {
+            if (text == "up" || text == "down")
+            {
+                legs.Add(text == "up" ? Leg.Up : Leg.Down);
+            }
+            else
+            {
+                sweep.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(sweep.Path("legs"), text, RecipeSchema.LegNames, Suggestions.Closest(text, RecipeSchema.LegNames)), node);
+            }
+        }
+
+        var tolerance = sweep.Number("monotonic_tolerance", required: false);
+        if (tolerance is < 0)
+        {
+            sweep.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(sweep.Path("monotonic_tolerance"), Numbers.Format(tolerance.Value), "zero or more"), sweep.Node("monotonic_tolerance"));
+        }
+
+        foreach (var needsLeg in new[] { "legs", "monotonic_tolerance" })
+        {
+            if (sweep.Has(needsLeg) && columns is not null && columns.Leg is null)
+            {
+                sweep.Sink.Add(RecipeCodes.Contradiction, Messages.NeedsLegColumn(sweep.Path(needsLeg)), sweep.Node(needsLeg));
+            }
+        }
+
+        var saturation = sweep.Integer("saturation_run", required: false);
+        if (saturation is < 2)
+        {
+            sweep.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(sweep.Path("saturation_run"), saturation.Value.ToString(CultureInfo.InvariantCulture), "a whole number of at least 2"), sweep.Node("saturation_run"));
+        }
+
+        var duplicates = sweep.Boolean("duplicate_rows", required: false) ?? false;
+        return new SweepExpectations
+        {
+            MinPoints = minPoints,
+            Range = range,
+            SpanPercent = span,
+            Legs = legs.ToImmutable(),
+            MonotonicTolerance = tolerance,
+            SaturationRun = saturation,
+            RejectDuplicateRows = duplicates,
+        };
     }
 
     private static RunsGate? ReadGates(MapReader top)

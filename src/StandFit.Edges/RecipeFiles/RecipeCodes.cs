@@ -13,4 +13,5 @@ public static class RecipeCodes
     public const string UnknownFigure = "recipe.unknown_figure";
     public const string DuplicatePart = "recipe.duplicate_part";
     public const string Unreadable = "recipe.unreadable";
+    public const string UnknownFamily = "recipe.unknown_family";
 }

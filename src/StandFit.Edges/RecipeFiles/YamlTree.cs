@@ -6,7 +6,11 @@ using YamlDotNet.Core.Events;
 namespace StandFit.Edges.RecipeFiles;
 
 /// <summary>A YAML node with the 1-based line and column where it starts.</summary>
-public abstract record YamlNode(int Line, int Column);
+public abstract record YamlNode(int Line, int Column)
+{
+    /// <summary>The file the node was read from (a recipe's inherited keys come from its family's file).</summary>
+    public string? File { get; init; }
+}
 
 /// <summary>A scalar exactly as written: its text and whether it was quoted (plain scalars carry YAML 1.1 traps).</summary>
 public sealed record YamlScalar(string Text, bool Plain, int Line, int Column) : YamlNode(Line, Column);
@@ -79,7 +83,7 @@ public static class YamlTree
 
         if (parser.TryConsume<Scalar>(out var scalar))
         {
-            return new YamlScalar(scalar.Value, scalar.Style == ScalarStyle.Plain, (int)scalar.Start.Line, (int)scalar.Start.Column);
+            return new YamlScalar(scalar.Value, scalar.Style == ScalarStyle.Plain, (int)scalar.Start.Line, (int)scalar.Start.Column) { File = file };
         }
 
         if (parser.TryConsume<SequenceStart>(out var sequenceStart))
@@ -90,7 +94,7 @@ public static class YamlTree
                 items.Add(ReadNode(parser, file, last));
             }
 
-            return new YamlList(items.ToImmutable(), (int)sequenceStart.Start.Line, (int)sequenceStart.Start.Column);
+            return new YamlList(items.ToImmutable(), (int)sequenceStart.Start.Line, (int)sequenceStart.Start.Column) { File = file };
         }
 
         if (parser.TryConsume<MappingStart>(out var mappingStart))
@@ -107,7 +111,7 @@ public static class YamlTree
                 entries.Add(new YamlEntry(keyScalar, ReadNode(parser, file, last)));
             }
 
-            return new YamlMap(entries.ToImmutable(), (int)mappingStart.Start.Line, (int)mappingStart.Start.Column);
+            return new YamlMap(entries.ToImmutable(), (int)mappingStart.Start.Line, (int)mappingStart.Start.Column) { File = file };
         }
 
         throw new RefusedYamlException(current.Start, Messages.RecipeYamlSyntax("unexpected " + current.GetType().Name));

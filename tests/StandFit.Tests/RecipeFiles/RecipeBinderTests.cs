@@ -42,6 +42,8 @@ public sealed class RecipeBinderTests
         gates:
           runs_test:
             p_min: 0.01
+        decision:
+          rule: guarded
         """;
 
     private static string[] Lines => Valid.Split('\n');
@@ -82,7 +84,7 @@ public sealed class RecipeBinderTests
         Assert.StartsWith("  gain:", Lines[GainLine - 1], StringComparison.Ordinal);
         Assert.StartsWith("  offset:", Lines[OffsetLine - 1], StringComparison.Ordinal);
         Assert.StartsWith("    p_min:", Lines[PMinLine - 1], StringComparison.Ordinal);
-        Assert.Equal(20, Lines.Length);
+        Assert.Equal(22, Lines.Length);
     }
 
     [Fact]
@@ -152,6 +154,8 @@ public sealed class RecipeBinderTests
             confidence: 0.95
             limits:
               c2: { max: 0.001 }
+            decision:
+              rule: guarded
             """).Value;
 
         Assert.Equal("polynomial-2", recipe.Model.Name);
@@ -501,7 +505,7 @@ public sealed class RecipeBinderTests
         var problem = SingleProblem(Valid + "\n---\nrecipe: other\n");
 
         Assert.Equal("recipe.syntax", problem.Code);
-        Assert.Equal(21, problem.Location.Line);
+        Assert.Equal(23, problem.Location.Line);
         Assert.Contains("one YAML document", problem.Message, StringComparison.Ordinal);
     }
 
@@ -530,7 +534,7 @@ public sealed class RecipeBinderTests
         var problem = SingleProblem(Valid + "\nextra: { a: 1\n");
 
         Assert.Equal("recipe.syntax", problem.Code);
-        Assert.Equal(22, problem.Location.Line);
+        Assert.Equal(24, problem.Location.Line);
     }
 
     [Fact]

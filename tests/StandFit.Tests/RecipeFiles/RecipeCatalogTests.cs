@@ -24,6 +24,8 @@ public sealed class RecipeCatalogTests : IDisposable
         confidence: 0.95
         limits:
           gain: { min: 0.1990, max: 0.2010 }
+        decision:
+          rule: guarded
 
         """;
 
