@@ -13,6 +13,8 @@ public static class Help
           watch            the long-lived worker: watch the inbox and process files as they land
           inspect FILE     fit and rule one sweep file with no side effects
           recipes check P  validate a recipe file or a folder of recipes
+          recipes explain PART  print the effective recipe of a part, after inheritance
+          recipes schema   print the JSON Schema of the recipe language
 
         Run 'standfit <command> --help' for a command's options. 'standfit --version' prints the version.
         Exit codes: 0 done, 1 invalid input (recipes check, inspect), 2 usage, 3 configuration,
@@ -51,6 +53,20 @@ public static class Help
           --model MODEL   fit this model instead of the recipe's: straight-line,
                           straight-line-through-zero, or polynomial-K (K = 1..10)
           --json          print every field of the summary row as JSON
+        """;
+
+    public const string RecipesExplain = """
+        Usage: standfit recipes explain PART [--config FILE | --recipes FOLDER]
+
+        Prints the recipe that judges PART as it is in force after inheritance (a family's keys merged
+        with the variant's), each value followed by the file and line it came from.
+        """;
+
+    public const string RecipesSchema = """
+        Usage: standfit recipes schema
+
+        Prints the JSON Schema of the recipe language (config/recipe.schema.json is this output), for
+        YAML editors that complete keys and mark errors.
         """;
 
     public const string RecipesCheck = """

@@ -20,7 +20,9 @@ return args[0] switch
     "watch" => await WatchCommand.ExecuteAsync(rest, output, error),
     "inspect" => InspectCommand.Execute(rest, output, error),
     "recipes" when rest.Length > 0 && rest[0] == "check" => RecipesCheckCommand.Execute(rest[1..], output, error),
-    "recipes" => Usage("standfit recipes: the subcommand is 'check'", Help.RecipesCheck),
+    "recipes" when rest.Length > 0 && rest[0] == "explain" => RecipesCommand.Explain(rest[1..], output, error),
+    "recipes" when rest.Length > 0 && rest[0] == "schema" => RecipesCommand.Schema(rest[1..], output, error),
+    "recipes" => Usage("standfit recipes: the subcommands are check, explain and schema", Help.RecipesCheck),
     _ => Usage($"standfit: unknown command '{args[0]}'", Help.Main),
 };
 

@@ -15,6 +15,47 @@ public sealed class MetadataRecord
     public string Value { get; set; } = "";
 }
 
+/// <summary>What one limit decided, as a struct inside the summary row's <c>limit_results</c> list.</summary>
+public sealed class LimitResultRecord
+{
+    [JsonPropertyName("figure")]
+    [ParquetRequired]
+    public string Figure { get; set; } = "";
+
+    [JsonPropertyName("value")]
+    public double Value { get; set; }
+
+    /// <summary>The expanded uncertainty U of the guard band (0 under simple acceptance).</summary>
+    [JsonPropertyName("expanded_uncertainty")]
+    public double ExpandedUncertainty { get; set; }
+
+    [JsonPropertyName("low")]
+    public double Low { get; set; }
+
+    [JsonPropertyName("high")]
+    public double High { get; set; }
+
+    [JsonPropertyName("min")]
+    public double? Min { get; set; }
+
+    [JsonPropertyName("max")]
+    public double? Max { get; set; }
+
+    /// <summary>simple or guarded.</summary>
+    [JsonPropertyName("rule")]
+    [ParquetRequired]
+    public string Rule { get; set; } = "";
+
+    /// <summary>within, above, below or straddles.</summary>
+    [JsonPropertyName("zone")]
+    [ParquetRequired]
+    public string Zone { get; set; } = "";
+
+    /// <summary>For a straddling interval: pass when the estimate itself is inside the limits, fail otherwise; null elsewhere.</summary>
+    [JsonPropertyName("conditional")]
+    public string? Conditional { get; set; }
+}
+
 /// <summary>One parameter of a unit's fit, as a struct inside the summary row's <c>parameters</c> list.</summary>
 public sealed class ParameterRecord
 {
@@ -52,7 +93,7 @@ public sealed class ParameterRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 1;
+    public const int CurrentSchemaVersion = 2;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -181,6 +222,10 @@ public sealed class SummaryRecord
 
     [JsonPropertyName("reasons")]
     public List<string> Reasons { get; set; } = [];
+
+    /// <summary>Every limit's decision, in the order of the reasons (most severe first): the audit trail of the ruling.</summary>
+    [JsonPropertyName("limit_results")]
+    public List<LimitResultRecord> LimitResults { get; set; } = [];
 
     [JsonPropertyName("processed_at")]
     [ParquetTimestamp(ParquetTimestampResolution.Milliseconds, useLogicalTimestamp: true, isAdjustedToUTC: true)]

@@ -64,6 +64,23 @@ public static class SummaryRecordFactory
             });
         }
 
+        foreach (var limit in unit.Verdict.Reasons.Select(f => f.Limit).OfType<LimitResult>())
+        {
+            record.LimitResults.Add(new LimitResultRecord
+            {
+                Figure = limit.Figure,
+                Value = limit.Value,
+                ExpandedUncertainty = limit.ExpandedUncertainty,
+                Low = limit.Low,
+                High = limit.High,
+                Min = limit.Min,
+                Max = limit.Max,
+                Rule = limit.Rule == DecisionRule.Guarded ? "guarded" : "simple",
+                Zone = limit.Zone.ToString().ToLowerInvariant(),
+                Conditional = limit.Conditional,
+            });
+        }
+
         if (unit.Parameter("offset") is { } offset)
         {
             (record.OffsetEstimate, record.OffsetSe, record.OffsetCiLow, record.OffsetCiHigh, record.OffsetT, record.OffsetP) = Flat(offset);

@@ -14,10 +14,12 @@ namespace StandFit.Edges.RecipeFiles;
 public sealed partial class MapReader
 {
     private readonly Dictionary<string, YamlEntry> _entries = new(StringComparer.Ordinal);
+    private readonly IReadOnlyCollection<string>? _knownKeys;
 
     public MapReader(YamlMap map, string where, ProblemSink sink, IReadOnlyCollection<string>? knownKeys)
     {
         Mapping = map;
+        _knownKeys = knownKeys;
         Where = where;
         Sink = sink;
         foreach (var entry in map.Entries)
@@ -235,6 +237,12 @@ public sealed partial class MapReader
 
     private YamlNode? Require(string key, bool required)
     {
+        if (_knownKeys is not null && !_knownKeys.Contains(key))
+        {
+            // A bug, not bad input: the code reads a key the language (RecipeSchema) does not declare.
+            throw new InvalidOperationException($"The code reads key '{key}' in {Where}, which the schema does not declare.");
+        }
+
         var node = Node(key);
         if (node is null && required && !Mapping.Entries.Any(e => e.Key.Text == key))
         {

@@ -10,21 +10,33 @@ namespace StandFit.Edges.RecipeFiles;
 /// </summary>
 public static class RecipeJsonSchema
 {
-    private static readonly JsonSerializerOptions Indented = new() { WriteIndented = true };
+    private static readonly JsonSerializerOptions Indented = new() { WriteIndented = true, Encoder = System.Text.Encodings.Web.JavaScriptEncoder.UnsafeRelaxedJsonEscaping };
 
     public static string Generate()
     {
-        var root = Object(RecipeSchema.Root);
-        root["$schema"] = "http://json-schema.org/draft-07/schema#";
-        root["$id"] = "standfit-recipe.schema.json";
-        root["title"] = "StandFit recipe";
+        var body = Object(RecipeSchema.Root);
+        var root = new JsonObject
+        {
+            ["$schema"] = "http://json-schema.org/draft-07/schema#",
+            ["$id"] = "standfit-recipe.schema.json",
+            ["title"] = "StandFit recipe",
+        };
+        foreach (var (key, value) in body.ToList())
+        {
+            body.Remove(key);
+            if (key != "required")
+            {
+                root[key] = value;
+            }
+            else
+            {
+                // A recipe that extends a family inherits its keys: the required ones are then optional.
+                root["if"] = new JsonObject { ["required"] = new JsonArray("extends") };
+                root["then"] = new JsonObject();
+                root["else"] = new JsonObject { ["required"] = value };
+            }
+        }
 
-        // A recipe that extends a family inherits its keys: the required ones are then optional.
-        var required = root["required"];
-        root.Remove("required");
-        root["if"] = new JsonObject { ["required"] = new JsonArray("extends") };
-        root["then"] = new JsonObject();
-        root["else"] = new JsonObject { ["required"] = required };
         return root.ToJsonString(Indented).Replace("\r\n", "\n", StringComparison.Ordinal) + "\n";
     }
 
@@ -59,7 +71,7 @@ public static class RecipeJsonSchema
             case ValueKind.Map:
                 return Object(spec);
             case ValueKind.NamedMaps:
-                var inner = Object(spec with { Description = spec.Description });
+                var inner = Object(spec);
                 inner.Remove("description");
                 return new JsonObject
                 {
