@@ -16,8 +16,9 @@ namespace StandFit.Core.Evaluation;
 /// </summary>
 public sealed class UnitEvaluation
 {
-    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult? runs, Verdict verdict, Problem? problem)
+    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult? runs, Verdict verdict, Problem? problem)
     {
+        Derived = derived;
         SourceName = sourceName;
         Identity = identity;
         Recipe = recipe;
@@ -42,6 +43,9 @@ public sealed class UnitEvaluation
     /// <summary>The parameters with their t-based intervals at the recipe's confidence (empty when rejected before the fit).</summary>
     public ImmutableArray<ParameterEstimate> Parameters { get; }
 
+    /// <summary>The model's derived quantities (trade coefficients) with delta-method error bars (empty when the model has none or there is no fit).</summary>
+    public ImmutableArray<ParameterEstimate> Derived { get; }
+
     public RunsTestResult? Runs { get; }
 
     public Verdict Verdict { get; }
@@ -53,10 +57,10 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, Verdict verdict) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, runs, verdict, null);
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, Verdict verdict) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, verdict, null);
 
     /// <summary>A unit that cannot be judged; whatever is known of it is kept.</summary>
     public static UnitEvaluation Rejected(string sourceName, Problem problem, UnitIdentity? identity = null, Recipe? recipe = null, Sweep? sweep = null) =>
-        new(sourceName, identity, recipe, sweep, null, [], null, Verdict.Rejected(problem), problem);
+        new(sourceName, identity, recipe, sweep, null, [], [], null, Verdict.Rejected(problem), problem);
 }

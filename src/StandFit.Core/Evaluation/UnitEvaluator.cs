@@ -9,7 +9,8 @@ namespace StandFit.Core.Evaluation;
 
 /// <summary>
 /// The pipeline for one unit, with no I/O: assemble the sweep with the recipe's columns, fit the
-/// recipe's model, put t-based error bars on the parameters, run the residual gate, and judge.
+/// recipe's model (weighted when the recipe says so), put t-based error bars on the parameters and
+/// the derived quantities, run the residual gate, and judge.
 /// </summary>
 public static class UnitEvaluator
 {
@@ -28,7 +29,20 @@ public static class UnitEvaluator
     public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null)
     {
         var model = modelOverride ?? recipe.Model;
-        var fitted = LeastSquaresFitter.Fit(model, sweep.Stimulus, sweep.Output, sourceName);
+        var uncertainties = sweep.Uncertainties;
+        if (recipe.Weights is { } rule)
+        {
+            uncertainties = [.. sweep.Output.Select(rule.UncertaintyOf)];
+        }
+
+        var data = new FitData(sweep.Inputs, sweep.Output)
+        {
+            Uncertainties = uncertainties,
+            SourceName = sourceName,
+            SourceLines = sweep.SourceLines,
+            InputNames = recipe.Columns.Inputs,
+        };
+        var fitted = LeastSquaresFitter.Fit(model, data);
         if (!fitted.IsSuccess)
         {
             return UnitEvaluation.Rejected(sourceName, fitted.Problems[0], sweep.Identity, recipe, sweep);
@@ -36,19 +50,20 @@ public static class UnitEvaluator
 
         var fit = fitted.Value;
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
+        var derived = DerivedEstimates.Compute(fit, recipe.Confidence);
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
         var findings = new List<Finding>();
         foreach (var limit in recipe.Limits)
         {
-            var parameter = parameters.FirstOrDefault(p => p.Name == limit.Figure);
-            if (parameter is null)
+            var figure = parameters.FirstOrDefault(p => p.Name == limit.Figure) ?? derived.FirstOrDefault(p => p.Name == limit.Figure);
+            if (figure is null)
             {
                 // Only reachable with a model override that lacks the recipe's figure.
                 continue;
             }
 
-            findings.Add(GuardedAcceptance.Judge(limit, parameter.Low, parameter.High, recipe.UnitOf(limit.Figure)));
+            findings.Add(GuardedAcceptance.Judge(limit, figure.Low, figure.High, recipe.UnitOf(limit.Figure)));
         }
 
         if (recipe.RunsGate is { } gate)
@@ -56,6 +71,6 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, Verdict.From(findings));
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, Verdict.From(findings));
     }
 }

@@ -77,6 +77,11 @@ public static class Messages
     public static string TooFewPoints(int points, int parameters) => F($"{points} points cannot give error bars for {parameters} parameters (at least {parameters + 1} are needed). Check the sweep.");
     public static string ZeroStimulusSpread(double value) => F($"every stimulus value is {Numbers.Format(value)}: the stand did not sweep. Check the stand's actuator and reference.");
     public static string RankDeficient(int distinct, int parameters) => F($"the sweep has {distinct} distinct stimulus values, too few to separate {parameters} parameters. Check the sweep plan or the model.");
+    public static string ZeroInputSpread(string column, double value) => F($"every value of input column '{column}' is {Numbers.Format(value)}: the stand did not vary it, so its terms cannot be told from the constant. Check the stand, or drop the input from the model.");
+    public static string Collinear(int parameters) => F($"the model's {parameters} terms cannot be told apart on this sweep (the design matrix is singular to working precision). Check the model's terms and the sweep plan.");
+    public static string OutsideDomain(string column, string symbol, double value, string condition) => F($"{symbol} (column '{column}') is {Numbers.Format(value, 10)} on this line, but {condition}: the model cannot use this point. Check the reading, or choose a model whose terms admit it.");
+    public static string ResponseOutsideDomain(double value, string condition) => F($"the output is {Numbers.Format(value, 10)} on this line, but {condition}. Check the reading and the recipe's 'model.temperature' unit.");
+    public static string BadUncertainty(double value) => F($"the output's standard uncertainty is {Numbers.Format(value)} on this line; a weight 1/u^2 needs an uncertainty above 0. Check the uncertainty column or the recipe's 'weights' rule.");
     public static string NonFiniteFit() => "the fit produced a non-finite number; the data are out of range for this model. Check the data and the model.";
     public static string InternalError(string exceptionType) => F($"the tool failed on this unit ({exceptionType}); the operations log has the details. Please report it.");
 

@@ -49,14 +49,17 @@ public sealed class StrdNoInt2Tests(ITestOutputHelper output) : StrdLinearContra
     protected override double MinimumLre => 9;
 }
 
-/// <summary>NIST StRD Filip.dat, certified values: degree-10 polynomial, higher difficulty (near-collinear).</summary>
+/// <summary>
+/// NIST StRD Filip.dat, certified values: degree-10 polynomial, higher difficulty (near-collinear).
+/// With the augmented-system refinement every certified value reaches LRE 13.8 or more (measured).
+/// </summary>
 public sealed class StrdFilipTests(ITestOutputHelper output) : StrdLinearContract(output)
 {
     protected override string DatasetFile => "Filip.dat";
 
     protected override LinearModel Model => Polynomial.OfDegree(10);
 
-    protected override double MinimumLre => 7;
+    protected override double MinimumLre => 9;
 }
 
 /// <summary>
@@ -113,10 +116,8 @@ public sealed class StrdWampler5Tests(ITestOutputHelper output) : StrdLinearCont
 
     protected override LinearModel Model => Polynomial.OfDegree(5);
 
+    // Wampler5's residuals are large: refining the coefficients alone reached only LRE 7.15 on B1.
+    // The fitter refines the augmented system (residuals and coefficients together, Björck), which
+    // reaches the 15 printed digits on every estimate (measured), so the common minimum applies.
     protected override double MinimumLre => 9;
-
-    // Known shortfall, measured: the estimates reach LRE 7.15 (B1) after double-double refinement of
-    // the residuals; Wampler5's residuals are large, so the refinement of the solution alone does not
-    // reach 9 (it needs refinement of the augmented system). Target 9 stays open in the fitting issue.
-    protected override double MinimumEstimateLre => 7;
 }
