@@ -284,8 +284,8 @@ public static class RecipeBinder
             {
                 var message = error.Kind switch
                 {
-                    TermErrorKind.UnknownFunction => Messages.TermUnknownFunction(where, text, error.Token, Suggestions.Closest(error.Token, BasisTermParser.Functions)),
-                    TermErrorKind.UnknownInput => Messages.TermUnknownInput(where, text, error.Token, Suggestions.Closest(error.Token, symbols), symbols),
+                    TermErrorKind.UnknownFunction => Messages.TermUnknownFunction(where, text, error.Token, SuggestFunction(error.Token)),
+                    TermErrorKind.UnknownInput => Messages.TermUnknownInput(where, text, error.Token, SuggestInput(error.Token, symbols), symbols),
                     TermErrorKind.BadPower => Messages.TermBadPower(where, text, error.Token, error.Expected),
                     _ => Messages.TermSyntax(where, text, error.Position, error.Expected),
                 };
@@ -313,6 +313,14 @@ public static class RecipeBinder
             ? new BasisModel(terms, inputCount)
             : new BasisModel(terms, inputCount, items.Select(i => i.Name!));
     }
+
+    /// <summary>The function meant: 'log' (and 'loge') is the natural logarithm of most languages, so 'ln'; else the closest name.</summary>
+    private static string? SuggestFunction(string token) =>
+        token.ToUpperInvariant() is "LOG" or "LOGE" ? "ln" : Suggestions.Closest(token, BasisTermParser.Functions);
+
+    /// <summary>No suggestion for an input number the recipe does not have (x3 of two inputs): the message lists the inputs.</summary>
+    private static string? SuggestInput(string token, IReadOnlyCollection<string> symbols) =>
+        token.Length > 1 && (token[0] is 'x' or 'X') && token[1..].All(char.IsAsciiDigit) && symbols.Count > 1 ? null : Suggestions.Closest(token, symbols);
 
     private static bool IsParameterName(string name) =>
         name.Length is > 0 and <= 32 && char.IsAsciiLetter(name[0]) && name.All(c => char.IsAsciiLetterOrDigit(c) || c == '_');
