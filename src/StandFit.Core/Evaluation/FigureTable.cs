@@ -24,7 +24,7 @@ public static class FigureTable
     public static ImmutableDictionary<string, bool> Names(LinearModel model, IEnumerable<DerivedFigure> derived)
     {
         var names = ImmutableDictionary.CreateBuilder<string, bool>(StringComparer.Ordinal);
-        foreach (var p in model.ParameterNames)
+        foreach (var p in model.ParameterNames.Concat(model.DerivedNames))
         {
             names[p] = true;
             names[p + HalfWidthSuffix] = false;
@@ -43,10 +43,10 @@ public static class FigureTable
         return names.ToImmutable();
     }
 
-    public static ImmutableDictionary<string, FigureValue> Compute(FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, Recipe recipe)
+    public static ImmutableDictionary<string, FigureValue> Compute(FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, RunsTestResult runs, Recipe recipe)
     {
         var figures = ImmutableDictionary.CreateBuilder<string, FigureValue>(StringComparer.Ordinal);
-        foreach (var p in parameters)
+        foreach (var p in parameters.Concat(modelDerived))
         {
             var unit = recipe.UnitOf(p.Name);
             figures[p.Name] = new FigureValue(p.Name, p.Estimate, p.StandardError, fit.DegreesOfFreedom, unit);
@@ -58,11 +58,11 @@ public static class FigureTable
         {
             if (d.Kind == DerivedKind.SensitivityAt)
             {
-                fit.Model.FillNaturalBasisDerivative(d.At, gradient);
+                fit.Model.FillBasisDerivative([d.At], 0, gradient);
             }
             else
             {
-                fit.Model.FillNaturalBasis(d.At, gradient);
+                fit.Model.FillBasis([d.At], gradient);
             }
 
             var (value, se) = Linear(fit, gradient);

@@ -16,8 +16,9 @@ namespace StandFit.Core.Evaluation;
 /// </summary>
 public sealed class UnitEvaluation
 {
-    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult? runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Problem? problem)
+    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult? runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Problem? problem)
     {
+        Derived = derived;
         Figures = figures;
         SourceName = sourceName;
         Identity = identity;
@@ -43,6 +44,9 @@ public sealed class UnitEvaluation
     /// <summary>The parameters with their t-based intervals at the recipe's confidence (empty when rejected before the fit).</summary>
     public ImmutableArray<ParameterEstimate> Parameters { get; }
 
+    /// <summary>The model's derived quantities (trade coefficients) with delta-method error bars (empty when the model has none or there is no fit).</summary>
+    public ImmutableArray<ParameterEstimate> Derived { get; }
+
     public RunsTestResult? Runs { get; }
 
     /// <summary>Every figure a limit can name (empty when the unit was not fitted).</summary>
@@ -57,14 +61,14 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, runs, figures, verdict, null);
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null);
 
     /// <summary>A unit whose sweep failed a data-quality gate: not fitted, ruled retest.</summary>
     internal static UnitEvaluation Screened(string sourceName, Recipe recipe, Sweep sweep, Verdict verdict) =>
-        new(sourceName, sweep.Identity, recipe, sweep, null, [], null, ImmutableDictionary<string, FigureValue>.Empty, verdict, null);
+        new(sourceName, sweep.Identity, recipe, sweep, null, [], [], null, ImmutableDictionary<string, FigureValue>.Empty, verdict, null);
 
     /// <summary>A unit that cannot be judged; whatever is known of it is kept.</summary>
     public static UnitEvaluation Rejected(string sourceName, Problem problem, UnitIdentity? identity = null, Recipe? recipe = null, Sweep? sweep = null) =>
-        new(sourceName, identity, recipe, sweep, null, [], null, ImmutableDictionary<string, FigureValue>.Empty, Verdict.Rejected(problem), problem);
+        new(sourceName, identity, recipe, sweep, null, [], [], null, ImmutableDictionary<string, FigureValue>.Empty, Verdict.Rejected(problem), problem);
 }

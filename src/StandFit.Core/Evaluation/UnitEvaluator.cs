@@ -11,7 +11,8 @@ namespace StandFit.Core.Evaluation;
 
 /// <summary>
 /// The pipeline for one unit, with no I/O: assemble the sweep with the recipe's columns, fit the
-/// recipe's model, put t-based error bars on the parameters, run the residual gate, and judge.
+/// recipe's model (weighted when the recipe says so), put t-based error bars on the parameters and
+/// the derived quantities, run the residual gate, and judge.
 /// </summary>
 public static class UnitEvaluator
 {
@@ -31,7 +32,20 @@ public static class UnitEvaluator
     {
         // A sweep no fit can use is rejected; a sweep that fails a data-quality gate is ruled retest.
         var model = modelOverride ?? recipe.Model;
-        if (LeastSquaresFitter.CheckFeasible(model, sweep.Stimulus, sourceName) is { } infeasible)
+        var uncertainties = sweep.Uncertainties;
+        if (recipe.Weights is { } rule)
+        {
+            uncertainties = [.. sweep.Output.Select(rule.UncertaintyOf)];
+        }
+
+        var data = new FitData(sweep.Inputs, sweep.Output)
+        {
+            Uncertainties = uncertainties,
+            SourceName = sourceName,
+            SourceLines = sweep.SourceLines,
+            InputNames = recipe.Columns.Inputs,
+        };
+        if (LeastSquaresFitter.CheckFeasible(model, data) is { } infeasible)
         {
             return UnitEvaluation.Rejected(sourceName, infeasible, sweep.Identity, recipe, sweep);
         }
@@ -42,7 +56,7 @@ public static class UnitEvaluator
             return UnitEvaluation.Screened(sourceName, recipe, sweep, Verdict.From(screened));
         }
 
-        var fitted = LeastSquaresFitter.Fit(model, sweep.Stimulus, sweep.Output, sourceName);
+        var fitted = LeastSquaresFitter.Fit(model, data);
         if (!fitted.IsSuccess)
         {
             return UnitEvaluation.Rejected(sourceName, fitted.Problems[0], sweep.Identity, recipe, sweep);
@@ -50,9 +64,10 @@ public static class UnitEvaluator
 
         var fit = fitted.Value;
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
+        var derived = DerivedEstimates.Compute(fit, recipe.Confidence);
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
-        var figures = FigureTable.Compute(fit, parameters, runs, recipe);
+        var figures = FigureTable.Compute(fit, parameters, derived, runs, recipe);
         var findings = new List<Finding>();
         foreach (var limit in recipe.Limits)
         {
@@ -71,6 +86,6 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, figures, Verdict.From(findings));
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings));
     }
 }

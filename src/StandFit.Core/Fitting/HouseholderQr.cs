@@ -55,6 +55,30 @@ internal sealed class HouseholderQr
         }
     }
 
+    /// <summary>Overwrites <paramref name="y"/> (length n) with Q y.</summary>
+    public void ApplyQ(Span<double> y)
+    {
+        for (var k = _p - 1; k >= 0; k--)
+        {
+            Reflect(k, y);
+        }
+    }
+
+    /// <summary>Solves R' x = b for x (length p), in place (R' is lower triangular).</summary>
+    public void SolveUpperTransposed(Span<double> b)
+    {
+        for (var i = 0; i < _p; i++)
+        {
+            var sum = b[i];
+            for (var j = 0; j < i; j++)
+            {
+                sum -= R(j, i) * b[j];
+            }
+
+            b[i] = sum / R(i, i);
+        }
+    }
+
     /// <summary>The first p columns of Q, column-major n x p.</summary>
     public double[] ThinQ()
     {

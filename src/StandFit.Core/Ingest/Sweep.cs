@@ -15,31 +15,53 @@ public enum Leg
 public sealed record UnitIdentity(string Serial, string? Part, string? Station, DateTime? TestStartUtc);
 
 /// <summary>
-/// A unit's sweep, ready to fit: one stimulus and one output value per point, in acquisition order
-/// (the recipe's order column, or file order). Units are the recipe's (see <c>units:</c>).
+/// A unit's sweep, ready to fit: one value of each input (stimulus) and one output value per
+/// point, optionally each output reading's standard uncertainty, in acquisition order (the
+/// recipe's order column, or file order). Units are the recipe's (see <c>units:</c>).
 /// </summary>
 public sealed class Sweep
 {
     public Sweep(UnitIdentity identity, ImmutableArray<double> stimulus, ImmutableArray<double> output, ImmutableArray<Leg> legs, ImmutableArray<int> sourceLines, ImmutableArray<MetadataEntry> metadata)
+        : this(identity, [stimulus], output, legs, sourceLines, metadata, default)
     {
-        if (stimulus.Length != output.Length || legs.Length != output.Length || sourceLines.Length != output.Length)
+    }
+
+    public Sweep(
+        UnitIdentity identity,
+        ImmutableArray<ImmutableArray<double>> inputs,
+        ImmutableArray<double> output,
+        ImmutableArray<Leg> legs,
+        ImmutableArray<int> sourceLines,
+        ImmutableArray<MetadataEntry> metadata,
+        ImmutableArray<double> uncertainties)
+    {
+        if (inputs.IsDefaultOrEmpty || inputs.Any(c => c.Length != output.Length) || legs.Length != output.Length || sourceLines.Length != output.Length
+            || (!uncertainties.IsDefaultOrEmpty && uncertainties.Length != output.Length))
         {
-            throw new ArgumentException("Every point needs a stimulus, an output, a leg and a source line.");
+            throw new ArgumentException("Every point needs its inputs, an output, a leg and a source line (and an uncertainty when there are any).");
         }
 
         Identity = identity;
-        Stimulus = stimulus;
+        Inputs = inputs;
         Output = output;
         Legs = legs;
         SourceLines = sourceLines;
         Metadata = metadata;
+        Uncertainties = uncertainties;
     }
 
     public UnitIdentity Identity { get; }
 
-    public int Count => Stimulus.Length;
+    public int Count => Output.Length;
 
-    public ImmutableArray<double> Stimulus { get; }
+    /// <summary>One column of values per input, in the recipe's order.</summary>
+    public ImmutableArray<ImmutableArray<double>> Inputs { get; }
+
+    /// <summary>The first (or only) input.</summary>
+    public ImmutableArray<double> Stimulus => Inputs[0];
+
+    /// <summary>Each output reading's standard uncertainty (from the recipe's uncertainty column), or default when there is none.</summary>
+    public ImmutableArray<double> Uncertainties { get; }
 
     public ImmutableArray<double> Output { get; }
 

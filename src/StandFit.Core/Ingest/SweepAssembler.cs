@@ -32,15 +32,20 @@ public static class SweepAssembler
             return Result<Sweep>.Failure(identity.Problems);
         }
 
-        var stimulusIndex = Find(table, columns.Stimulus);
+        var inputIndex = new int[columns.Inputs.Length];
+        for (var k = 0; k < inputIndex.Length; k++)
+        {
+            inputIndex[k] = Find(table, columns.Inputs[k]);
+            if (inputIndex[k] < 0)
+            {
+                return Missing(table, "stimulus", columns.Inputs[k]);
+            }
+        }
+
         var outputIndex = Find(table, columns.Output);
         var legIndex = columns.Leg is null ? -1 : Find(table, columns.Leg);
         var orderIndex = columns.Order is null ? -1 : Find(table, columns.Order);
-        if (stimulusIndex < 0)
-        {
-            return Missing(table, "stimulus", columns.Stimulus);
-        }
-
+        var uncertaintyIndex = columns.Uncertainty is null ? -1 : Find(table, columns.Uncertainty);
         if (outputIndex < 0)
         {
             return Missing(table, "output", columns.Output);
@@ -56,9 +61,15 @@ public static class SweepAssembler
             return Missing(table, "order", columns.Order);
         }
 
+        if (columns.Uncertainty is not null && uncertaintyIndex < 0)
+        {
+            return Missing(table, "uncertainty", columns.Uncertainty);
+        }
+
         var n = table.Rows.Length;
-        var stimulus = new double[n];
+        var inputs = inputIndex.Select(_ => new double[n]).ToArray();
         var output = new double[n];
+        var uncertainties = uncertaintyIndex >= 0 ? new double[n] : null;
         var legs = new Leg[n];
         var lines = new int[n];
         var order = orderIndex >= 0 ? new double[n] : null;
@@ -66,9 +77,12 @@ public static class SweepAssembler
         {
             var row = table.Rows[i];
             lines[i] = row.Line;
-            if (Number(table, row, stimulusIndex, out stimulus[i]) is { } p1)
+            for (var k = 0; k < inputIndex.Length; k++)
             {
-                return p1;
+                if (Number(table, row, inputIndex[k], out inputs[k][i]) is { } p1)
+                {
+                    return p1;
+                }
             }
 
             if (Number(table, row, outputIndex, out output[i]) is { } p2)
@@ -79,6 +93,19 @@ public static class SweepAssembler
             if (order is not null && Number(table, row, orderIndex, out order[i]) is { } p3)
             {
                 return p3;
+            }
+
+            if (uncertainties is not null)
+            {
+                if (Number(table, row, uncertaintyIndex, out uncertainties[i]) is { } p4)
+                {
+                    return p4;
+                }
+
+                if (!(uncertainties[i] > 0))
+                {
+                    return Cell(table, row, uncertaintyIndex, ReasonCodes.InputBadUncertainty, Messages.BadUncertainty(uncertainties[i]));
+                }
             }
 
             if (legIndex >= 0)
@@ -103,19 +130,24 @@ public static class SweepAssembler
         {
             var permutation = Enumerable.Range(0, n).ToArray();
             Array.Sort(permutation, (a, b) => order[a] != order[b] ? order[a].CompareTo(order[b]) : a.CompareTo(b));
-            stimulus = [.. permutation.Select(k => stimulus[k])];
+            inputs = [.. inputs.Select(column => permutation.Select(k => column[k]).ToArray())];
             output = [.. permutation.Select(k => output[k])];
             legs = [.. permutation.Select(k => legs[k])];
             lines = [.. permutation.Select(k => lines[k])];
+            if (uncertainties is not null)
+            {
+                uncertainties = [.. permutation.Select(k => uncertainties[k])];
+            }
         }
 
         return new Sweep(
             identity.Value,
-            ImmutableCollectionsMarshal.AsImmutableArray(stimulus),
+            [.. inputs.Select(ImmutableCollectionsMarshal.AsImmutableArray)],
             ImmutableCollectionsMarshal.AsImmutableArray(output),
             ImmutableCollectionsMarshal.AsImmutableArray(legs),
             ImmutableCollectionsMarshal.AsImmutableArray(lines),
-            table.Metadata);
+            table.Metadata,
+            uncertainties is null ? default : ImmutableCollectionsMarshal.AsImmutableArray(uncertainties));
     }
 
     /// <summary>Serial (from metadata, else the file name without extension), part, station and test start.</summary>

@@ -78,7 +78,28 @@ public static class Messages
     public static string MinAboveMax(string where, string min, string max) => F($"{where} has min {min} above max {max}; swap them or fix one.");
     public static string LimitNeedsBound(string where) => F($"{where} needs 'min', 'max' or both.");
     public static string UnknownFigure(string figure, string model, IEnumerable<string> figures) => F($"limit on '{figure}', but model {model} produces no such figure; its figures are: {string.Join(", ", figures)}.");
-    public static string DegreeWithoutPolynomial(string model) => F($"'degree' applies only to model type 'polynomial', not '{model}'; remove it or change the type.");
+    public static string DegreeWithoutPolynomial(string model) => KeyNotForModel("degree", "polynomial", model);
+    public static string KeyNotForModel(string key, string owner, string model) => F($"'{key}' applies only to model type '{owner}', not '{model}'; remove it or change the type.");
+    public static string ModelTakesOneInput(string model, int inputs) => F($"model type '{model}' takes one stimulus column, but 'columns.stimulus' names {inputs}; name one column, or use type 'basis' for a model of several inputs.");
+    public static string TooManyInputs(int inputs, int limit) => F($"'columns.stimulus' names {inputs} columns; at most {limit} are allowed.");
+    public static string DuplicateInput(string column, int first) => F($"column '{column}' is already stimulus {first} (header names are matched ignoring case); name each stimulus column once.");
+    public static string UnitCountMismatch(int units, int inputs) => F($"'units.stimulus' gives {units} unit(s) for {inputs} stimulus column(s); give one unit per stimulus column, in the same order (a list when there are several).");
+    public static string TermSyntax(string where, string term, int position, string expected) => F($"{where}: term '{term}' is not understood at character {position}: expected {expected}. Terms are 1, x, x^k, 1/x, sqrt(x), ln(x), ln(x)^k and products such as x1*x2.");
+    public static string TermUnknownFunction(string where, string term, string function, string? suggestion) =>
+        suggestion is not null
+            ? F($"{where}: term '{term}' uses the function '{function}'; did you mean '{suggestion}'? The functions are ln and sqrt.")
+            : F($"{where}: term '{term}' uses the function '{function}'; the functions are ln and sqrt.");
+    public static string TermUnknownInput(string where, string term, string input, string? suggestion, IEnumerable<string> inputs) =>
+        suggestion is not null
+            ? F($"{where}: term '{term}' uses the input '{input}'; did you mean '{suggestion}'? The inputs are {string.Join(", ", inputs)} (the stimulus columns in order).")
+            : F($"{where}: term '{term}' uses the input '{input}'; the inputs are {string.Join(", ", inputs)} (the stimulus columns in order).");
+    public static string TermBadPower(string where, string term, string power, string expected) => F($"{where}: term '{term}' has the power '{power}'; write {expected}.");
+    public static string DuplicateTerm(string where, string term, string earlier) => F($"{where}: term '{term}' is the same function as the earlier term '{earlier}'; give each term once.");
+    public static string TooManyTerms(string where, int terms, int limit) => F($"{where} has {terms} terms; at most {limit} are allowed.");
+    public static string BadParameterName(string where, string name) => F($"{where}: '{name}' cannot name a parameter; use a letter followed by letters, digits or '_'.");
+    public static string WeightsNeedSource(string where) => F($"{where} needs 'column' (the readings' standard uncertainties), or both 'u_fixed' and 'u_relative' (the rule u = u_fixed + u_relative * |reading|).");
+    public static string WeightsTwoSources(string where) => F($"{where} has both 'column' and a rule ('u_fixed', 'u_relative'); the weights come from one of them. Remove one.");
+    public static string WeightRuleZero(string where) => F($"{where}: 'u_fixed' and 'u_relative' are both 0, which gives every reading an infinite weight; make at least one above 0.");
     public static string EmptyList(string where) => F($"{where} is an empty list; name at least one.");
     public static string DuplicatePart(string part, string otherFile) => F($"part '{part}' is also listed by recipe file {otherFile}; a part must have exactly one recipe.");
     public static string UnreadableFile(string detail) => F($"the file cannot be read: {detail}.");
@@ -96,6 +117,11 @@ public static class Messages
     public static string TooFewPoints(int points, int parameters) => F($"{points} points cannot give error bars for {parameters} parameters (at least {parameters + 1} are needed). Check the sweep.");
     public static string ZeroStimulusSpread(double value) => F($"every stimulus value is {Numbers.Format(value)}: the stand did not sweep. Check the stand's actuator and reference.");
     public static string RankDeficient(int distinct, int parameters) => F($"the sweep has {distinct} distinct stimulus values, too few to separate {parameters} parameters. Check the sweep plan or the model.");
+    public static string ZeroInputSpread(string column, double value) => F($"every value of input column '{column}' is {Numbers.Format(value)}: the stand did not vary it, so its terms cannot be told from the constant. Check the stand, or drop the input from the model.");
+    public static string Collinear(int parameters) => F($"the model's {parameters} terms cannot be told apart on this sweep (the design matrix is singular to working precision). Check the model's terms and the sweep plan.");
+    public static string OutsideDomain(string column, string symbol, double value, string condition) => F($"{symbol} (column '{column}') is {Numbers.Format(value, 10)} on this line, but {condition}: the model cannot use this point. Check the reading, or choose a model whose terms admit it.");
+    public static string ResponseOutsideDomain(double value, string condition) => F($"the output is {Numbers.Format(value, 10)} on this line, but {condition}. Check the reading and the recipe's 'model.temperature' unit.");
+    public static string BadUncertainty(double value) => F($"the output's standard uncertainty is {Numbers.Format(value)} on this line; a weight 1/u^2 needs an uncertainty above 0. Check the uncertainty column or the recipe's 'weights' rule.");
     public static string NonFiniteFit() => "the fit produced a non-finite number; the data are out of range for this model. Check the data and the model.";
     public static string InternalError(string exceptionType) => F($"the tool failed on this unit ({exceptionType}); the operations log has the details. Please report it.");
 

@@ -47,6 +47,7 @@ public static class ReasonCodes
     public static readonly ReasonCode InputBadNumber = new("input.bad_number", ReasonKind.Reject, "A cell that must hold a number does not.");
     public static readonly ReasonCode InputNonFinite = new("input.non_finite", ReasonKind.Reject, "A cell holds NaN or an infinity.");
     public static readonly ReasonCode InputBadLeg = new("input.bad_leg", ReasonKind.Reject, "A leg cell is neither 'up' nor 'down'.");
+    public static readonly ReasonCode InputBadUncertainty = new("input.bad_uncertainty", ReasonKind.Reject, "A reading's standard uncertainty (from the uncertainty column or the recipe's weights rule) is zero, negative or not finite.");
     public static readonly ReasonCode InputNoRecipe = new("input.no_recipe", ReasonKind.Reject, "No recipe lists the unit's part.");
 
     // Data-quality gates, before any fit: the measurement is in doubt, so the unit is tested again.
@@ -61,6 +62,7 @@ public static class ReasonCodes
     public static readonly ReasonCode FitTooFewPoints = new("fit.too_few_points", ReasonKind.Reject, "Fewer points than the model has parameters, or no degree of freedom left for an error bar.");
     public static readonly ReasonCode FitZeroStimulusSpread = new("fit.zero_stimulus_spread", ReasonKind.Reject, "All stimulus values are equal: no curve can be fitted.");
     public static readonly ReasonCode FitRankDeficient = new("fit.rank_deficient", ReasonKind.Reject, "The stimulus values cannot separate the model's parameters (too few distinct set points).");
+    public static readonly ReasonCode FitDomain = new("fit.domain", ReasonKind.Reject, "A point lies outside the model's domain (for example ln of a stimulus that is not positive); the message names its line.");
     public static readonly ReasonCode FitNonFinite = new("fit.non_finite", ReasonKind.Reject, "The fit produced a non-finite number.");
 
     // A bug in the tool: the unit is rejected and the worker goes on.
@@ -83,9 +85,9 @@ public static class ReasonCodes
     [
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
         InputDuplicateMetadata, InputBadSerial, InputNoHeader, InputDuplicateColumn, InputNoRows,
-        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputNoRecipe,
+        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputBadUncertainty, InputNoRecipe,
         SweepTooFewPoints, SweepSpanShort, SweepLegMissing, SweepLegNotMonotonic, SweepOutputSaturated, SweepDuplicateRows,
-        FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitNonFinite,
+        FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitDomain, FitNonFinite,
         InternalError,
         LimitWithin, LimitAbove, LimitBelow, LimitStraddles, LimitNotEvaluated,
         RunsOk, RunsNotApplicable, RunsStructure,

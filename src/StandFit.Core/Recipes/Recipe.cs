@@ -8,10 +8,34 @@ using StandFit.Core.Uncertainty;
 
 namespace StandFit.Core.Recipes;
 
-/// <summary>Units of the stimulus and output columns, as the recipe states them (free text, e.g. "kPa", "mV").</summary>
-public sealed record ColumnUnits(string Stimulus, string Output)
+/// <summary>Units of the stimulus (input) and output columns, as the recipe states them (free text, e.g. "kPa", "mV").</summary>
+public sealed record ColumnUnits
 {
+    public ColumnUnits(string stimulus, string output)
+        : this([stimulus], output)
+    {
+    }
+
+    /// <summary>One unit per input column, and the output's.</summary>
+    public ColumnUnits(ImmutableArray<string> inputs, string output)
+    {
+        Inputs = inputs.IsDefaultOrEmpty ? [""] : inputs;
+        Output = output;
+    }
+
     public static ColumnUnits None { get; } = new("", "");
+
+    public ImmutableArray<string> Inputs { get; }
+
+    /// <summary>The unit of the first (or only) input.</summary>
+    public string Stimulus => Inputs[0];
+
+    public string Output { get; }
+
+    public bool Equals(ColumnUnits? other) =>
+        other is not null && Inputs.SequenceEqual(other.Inputs, StringComparer.Ordinal) && Output == other.Output;
+
+    public override int GetHashCode() => HashCode.Combine(string.Join('\u001f', Inputs), Output);
 
     /// <summary>The unit of a polynomial coefficient of the given power: output / stimulus^power.</summary>
     public string OfPower(int power) => power switch
@@ -21,6 +45,33 @@ public sealed record ColumnUnits(string Stimulus, string Output)
         1 => $"{Output}/{Stimulus}",
         _ => $"{Output}/{Stimulus}^{power.ToString(System.Globalization.CultureInfo.InvariantCulture)}",
     };
+}
+
+/// <summary>
+/// The recipe's rule for the standard uncertainty of each output reading when the file has no
+/// uncertainty column: u = Fixed + Relative |y|, y the reading as recorded (output units). The fit
+/// is then weighted with w = 1/u^2.
+/// </summary>
+public sealed record WeightRule
+{
+    public WeightRule(double @fixed, double relative)
+    {
+        if (!(@fixed >= 0) || !(relative >= 0) || !double.IsFinite(@fixed) || !double.IsFinite(relative) || (@fixed == 0 && relative == 0))
+        {
+            throw new ArgumentOutOfRangeException(nameof(@fixed), "A weight rule needs u_fixed >= 0 and u_relative >= 0, not both 0.");
+        }
+
+        Fixed = @fixed;
+        Relative = relative;
+    }
+
+    /// <summary>a: the part of u that does not depend on the reading, in output units.</summary>
+    public double Fixed { get; }
+
+    /// <summary>b: the part of u per unit of |reading| (0.001 is 0.1 % of reading).</summary>
+    public double Relative { get; }
+
+    public double UncertaintyOf(double reading) => Fixed + (Relative * Math.Abs(reading));
 }
 
 /// <summary>
@@ -40,9 +91,20 @@ public sealed class Recipe
         ImmutableArray<FigureLimit> limits,
         RunsGate? runsGate,
         string contentHash,
-        string sourceFile)
+        string sourceFile,
+        WeightRule? weights = null)
     {
         ArgumentException.ThrowIfNullOrWhiteSpace(name);
+        if (columns.Inputs.Length != model.InputCount)
+        {
+            throw new ArgumentException($"Model {model.Name} takes {model.InputCount} input(s); the recipe names {columns.Inputs.Length}.", nameof(columns));
+        }
+
+        if (weights is not null && columns.Uncertainty is not null)
+        {
+            throw new ArgumentException("Weights come from the uncertainty column or from a rule, not both.", nameof(weights));
+        }
+
         Name = name;
         Version = version;
         Parts = parts;
@@ -54,6 +116,7 @@ public sealed class Recipe
         RunsGate = runsGate;
         ContentHash = contentHash;
         SourceFile = sourceFile;
+        Weights = weights;
     }
 
     public string Name { get; }
@@ -97,16 +160,22 @@ public sealed class Recipe
     /// <summary>The recipe file's name (no folder).</summary>
     public string SourceFile { get; }
 
-    /// <summary>The unit of a parameter of the model.</summary>
+    /// <summary>The rule for the readings' standard uncertainties, when the recipe gives one (weighted fit), or null.</summary>
+    public WeightRule? Weights { get; }
+
+    /// <summary>True when the fit is weighted: by the uncertainty column or by <see cref="Weights"/>.</summary>
+    public bool IsWeighted => Weights is not null || Columns.Uncertainty is not null;
+
+    /// <summary>The unit of a parameter, or of a derived quantity, of the model ("" when unknown).</summary>
     public string UnitOf(string parameter)
     {
         var index = Model.ParameterNames.IndexOf(parameter);
-        if (index < 0)
+        if (index >= 0)
         {
-            return "";
+            return Model.UnitOf(index, Units.Inputs, Units.Output);
         }
 
-        var lowest = Model.HasIntercept ? 0 : 1;
-        return Units.OfPower(index + lowest);
+        var derived = Model.DerivedNames.IndexOf(parameter);
+        return derived >= 0 ? Model.DerivedUnitOf(derived, Units.Inputs, Units.Output) : "";
     }
 }

@@ -85,6 +85,23 @@ public sealed class ParameterRecord
     public double P { get; set; }
 }
 
+/// <summary>One quantity derived from the fit (a trade coefficient), as a struct inside the summary row's <c>derived</c> list.</summary>
+public sealed class DerivedRecord
+{
+    [JsonPropertyName("name")]
+    [ParquetRequired]
+    public string Name { get; set; } = "";
+
+    [JsonPropertyName("unit")]
+    public string? Unit { get; set; }
+
+    [JsonPropertyName("estimate")]
+    public double Estimate { get; set; }
+
+    [JsonPropertyName("se")]
+    public double StandardError { get; set; }
+}
+
 /// <summary>
 /// One row of the summary table (output/summaries/date=YYYY-MM-DD/*.parquet): one unit, its
 /// identity, the recipe that judged it, the fit and the ruling. docs/outputs.md documents every
@@ -93,7 +110,7 @@ public sealed class ParameterRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 2;
+    public const int CurrentSchemaVersion = 3;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -149,8 +166,16 @@ public sealed class SummaryRecord
     [JsonPropertyName("df")]
     public int? DegreesOfFreedom { get; set; }
 
+    /// <summary>True when the fit was weighted by the readings' standard uncertainties.</summary>
+    [JsonPropertyName("weighted")]
+    public bool? Weighted { get; set; }
+
     [JsonPropertyName("parameters")]
     public List<ParameterRecord> Parameters { get; set; } = [];
+
+    /// <summary>The model's derived quantities (the trade's own coefficients), with delta-method standard errors.</summary>
+    [JsonPropertyName("derived")]
+    public List<DerivedRecord> Derived { get; set; } = [];
 
     [JsonPropertyName("offset_estimate")]
     public double? OffsetEstimate { get; set; }

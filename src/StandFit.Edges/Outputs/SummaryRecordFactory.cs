@@ -33,6 +33,7 @@ public static class SummaryRecordFactory
             Confidence = recipe?.Confidence.Value,
             Points = unit.Sweep?.Count,
             DegreesOfFreedom = fit?.DegreesOfFreedom,
+            Weighted = fit?.IsWeighted,
             ResidualSd = fit?.ResidualSd,
             RSquared = fit?.RSquared,
             AdjustedRSquared = fit?.AdjustedRSquared,
@@ -78,6 +79,17 @@ public static class SummaryRecordFactory
                 Rule = limit.Rule == DecisionRule.Guarded ? "guarded" : "simple",
                 Zone = limit.Zone.ToString().ToLowerInvariant(),
                 Conditional = limit.Conditional,
+            });
+        }
+
+        foreach (var d in unit.Derived)
+        {
+            record.Derived.Add(new DerivedRecord
+            {
+                Name = d.Name,
+                Unit = recipe?.UnitOf(d.Name),
+                Estimate = d.Estimate,
+                StandardError = d.StandardError,
             });
         }
 

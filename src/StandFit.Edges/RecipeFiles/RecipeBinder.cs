@@ -27,6 +27,15 @@ public static class RecipeBinder
     public static readonly ImmutableArray<string> GateKeys = RecipeSchema.Root.Child("gates").ChildNames;
     public static readonly ImmutableArray<string> RunsGateKeys = RecipeSchema.Root.Child("gates").Child("runs_test").ChildNames;
 
+    public static readonly ImmutableArray<string> TemperatureUnits = RecipeSchema.TemperatureUnits;
+    public static readonly ImmutableArray<string> WeightKeys = RecipeSchema.Root.Child("weights").ChildNames;
+
+    /// <summary>The most stimulus columns a recipe may name (the inputs x1 ... x9).</summary>
+    public const int MaxInputs = 9;
+
+    /// <summary>The most terms a basis model may have.</summary>
+    public const int MaxTerms = 20;
+
     private static readonly KeySpec Root = RecipeSchema.Root;
 
     /// <summary>Reads one recipe file's text. <paramref name="file"/> is the name shown in messages.</summary>
@@ -63,22 +72,35 @@ public static class RecipeBinder
         }
 
         var patterns = top.TextList("file_patterns", required: false);
-        var columns = ReadColumns(top);
-        var units = ReadUnits(top);
-        var model = ReadModel(top);
+        var (columns, inputCount) = ReadColumns(top);
+        var units = ReadUnits(top, inputCount);
+        var model = ReadModel(top, inputCount);
         var confidence = ReadConfidence(top);
+        var weights = ReadWeights(top);
         var derived = ReadDerived(top, model);
         var decision = ReadDecision(top);
         var limits = ReadLimits(top, model, derived, decision);
         var sweep = ReadSweep(top, columns);
         var runsGate = ReadGates(top);
 
-        if (sink.HasProblems || name is null || version is null || columns is null || model is null || confidence is null)
+        if (sink.HasProblems || name is null || version is null || columns is null || model is null || confidence is null || weights is null)
         {
             return Result<Recipe>.Failure(sink.Problems);
         }
 
-        return new Recipe(name, version, [.. parts.Select(p => p.Text)], columns, units ?? ColumnUnits.None, model, confidence.Value, limits, runsGate, contentHash, sink.File)
+        return new Recipe(
+            name,
+            version,
+            [.. parts.Select(p => p.Text)],
+            new ColumnMap(columns.Inputs, columns.Output, columns.Leg, columns.Order, weights.Column),
+            units ?? ColumnUnits.None,
+            model,
+            confidence.Value,
+            limits,
+            runsGate,
+            contentHash,
+            sink.File,
+            weights.Rule)
         {
             Derived = derived,
             Sweep = sweep,
@@ -88,22 +110,56 @@ public static class RecipeBinder
         };
     }
 
-    private static ColumnMap? ReadColumns(MapReader top)
+
+
+
+    /// <summary>The column map (without the uncertainty column, which 'weights' names) and the number of stimulus columns read.</summary>
+    private static (ColumnMap? Columns, int InputCount) ReadColumns(MapReader top)
     {
         var columns = top.Map("columns", ColumnKeys, required: true);
         if (columns is null)
         {
-            return null;
+            return (null, 1);
         }
 
-        var stimulus = columns.Text("stimulus", required: true);
+        var inputs = ReadTextOrList(columns, "stimulus");
         var output = columns.Text("output", required: true);
         var leg = columns.Text("leg", required: false);
         var order = columns.Text("order", required: false);
-        return stimulus is null || output is null ? null : new ColumnMap(stimulus, output, leg, order);
+        var ok = inputs.Count > 0;
+        if (inputs.Count > MaxInputs)
+        {
+            columns.Sink.Add(RecipeCodes.BadValue, Messages.TooManyInputs(inputs.Count, MaxInputs), columns.Node("stimulus"));
+            ok = false;
+        }
+
+        for (var k = 0; k < inputs.Count; k++)
+        {
+            var first = inputs.FindIndex(i => string.Equals(i.Text, inputs[k].Text, StringComparison.OrdinalIgnoreCase));
+            if (first < k)
+            {
+                columns.Sink.Add(RecipeCodes.Contradiction, Messages.DuplicateInput(inputs[k].Text, first + 1), inputs[k].Node);
+                ok = false;
+            }
+        }
+
+        var count = Math.Clamp(inputs.Count, 1, MaxInputs);
+        return !ok || output is null ? (null, count) : (new ColumnMap([.. inputs.Select(i => i.Text)], output, leg, order), count);
     }
 
-    private static ColumnUnits? ReadUnits(MapReader top)
+    /// <summary>A required key whose value is one text, or a non-empty list of texts.</summary>
+    private static List<(string Text, YamlNode Node)> ReadTextOrList(MapReader map, string key)
+    {
+        if (map.Node(key) is YamlList)
+        {
+            return [.. map.TextList(key, required: true)];
+        }
+
+        var text = map.Text(key, required: true);
+        return text is null ? [] : [(text, map.Node(key)!)];
+    }
+
+    private static ColumnUnits? ReadUnits(MapReader top, int inputCount)
     {
         var units = top.Map("units", UnitKeys, required: false);
         if (units is null)
@@ -111,10 +167,18 @@ public static class RecipeBinder
             return null;
         }
 
-        return new ColumnUnits(units.Text("stimulus", required: true) ?? "", units.Text("output", required: true) ?? "");
+        var inputs = ReadTextOrList(units, "stimulus");
+        var output = units.Text("output", required: true) ?? "";
+        if (inputs.Count > 0 && inputs.Count != inputCount)
+        {
+            units.Sink.Add(RecipeCodes.Contradiction, Messages.UnitCountMismatch(inputs.Count, inputCount), units.Node("stimulus"));
+            return null;
+        }
+
+        return new ColumnUnits(inputs.Count == 0 ? [""] : [.. inputs.Select(i => i.Text)], output);
     }
 
-    private static LinearModel? ReadModel(MapReader top)
+    private static LinearModel? ReadModel(MapReader top, int inputCount)
     {
         var model = top.Map("model", ModelKeys, required: true);
         if (model is null)
@@ -123,21 +187,58 @@ public static class RecipeBinder
         }
 
         var type = model.Text("type", required: true);
-        var degreeNode = model.Node("degree");
-        var degree = model.Integer("degree", required: type == "polynomial");
+        if (type is null)
+        {
+            return null;
+        }
+
+        if (!ModelTypes.Contains(type))
+        {
+            model.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(model.Path("type"), type, ModelTypes, Suggestions.Closest(type, ModelTypes)), model.Node("type"));
+            return null;
+        }
+
+        // Keys that belong to one model type only.
+        var ok = true;
+        foreach (var (key, owner) in new[] { ("degree", "polynomial"), ("terms", "basis"), ("temperature", "steinhart-hart") })
+        {
+            if (type != owner && model.Node(key) is { } stray)
+            {
+                model.Sink.Add(RecipeCodes.Contradiction, Messages.KeyNotForModel(key, owner, type), stray);
+                ok = false;
+            }
+        }
+
+        if (type != "basis" && inputCount != 1)
+        {
+            model.Sink.Add(RecipeCodes.Contradiction, Messages.ModelTakesOneInput(type, inputCount), model.Node("type"));
+            ok = false;
+        }
+
         switch (type)
         {
-            case null:
-                return null;
-            case "straight-line" or "straight-line-through-zero":
-                if (degreeNode is not null)
+            case "straight-line":
+                return ok ? Polynomial.StraightLine : null;
+            case "straight-line-through-zero":
+                return ok ? Polynomial.StraightLineThroughZero : null;
+            case "callendar-van-dusen":
+                return ok ? CallendarVanDusen.AboveZero : null;
+            case "steinhart-hart":
+                var temperature = model.Text("temperature", required: true);
+                if (temperature is null)
                 {
-                    model.Sink.Add(RecipeCodes.Contradiction, Messages.DegreeWithoutPolynomial(type), degreeNode);
                     return null;
                 }
 
-                return type == "straight-line" ? Polynomial.StraightLine : Polynomial.StraightLineThroughZero;
+                if (!TemperatureUnits.Contains(temperature))
+                {
+                    model.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(model.Path("temperature"), temperature, TemperatureUnits, Suggestions.Closest(temperature, TemperatureUnits)), model.Node("temperature"));
+                    return null;
+                }
+
+                return ok ? new SteinhartHart(temperature == "kelvin" ? TemperatureScale.Kelvin : TemperatureScale.Celsius) : null;
             case "polynomial":
+                var degree = model.Integer("degree", required: true);
                 if (degree is null)
                 {
                     return null;
@@ -145,15 +246,170 @@ public static class RecipeBinder
 
                 if (degree is < 1 or > Polynomial.MaxDegree)
                 {
-                    model.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(model.Path("degree"), degree.Value.ToString(CultureInfo.InvariantCulture), "a whole number from 1 to 10"), degreeNode);
+                    model.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(model.Path("degree"), degree.Value.ToString(CultureInfo.InvariantCulture), "a whole number from 1 to 10"), model.Node("degree"));
                     return null;
                 }
 
-                return Polynomial.OfDegree(degree.Value);
+                return ok ? Polynomial.OfDegree(degree.Value) : null;
             default:
-                model.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(model.Path("type"), type, ModelTypes, Suggestions.Closest(type, ModelTypes)), model.Node("type"));
+                var basis = ReadTerms(model, inputCount);
+                return ok ? basis : null;
+        }
+    }
+
+    /// <summary>
+    /// 'model.terms' of a basis model: a list of terms (parameters b0, b1 ...) or a mapping of
+    /// parameter name to term, in order.
+    /// </summary>
+    private static BasisModel? ReadTerms(MapReader model, int inputCount)
+    {
+        var where = model.Path("terms");
+        var node = model.Node("terms");
+        var items = new List<(string? Name, YamlNode NameNode, string Text, YamlNode Node)>();
+        switch (node)
+        {
+            case null:
+                model.Text("terms", required: true); // reports the missing key
+                return null;
+            case YamlList:
+                items.AddRange(model.TextList("terms", required: true).Select(t => ((string?)null, t.Node, t.Text, t.Node)));
+                break;
+            case YamlMap:
+                var map = model.Map("terms", knownKeys: null, required: true)!;
+                if (!map.Entries.Any())
+                {
+                    map.Sink.Add(RecipeCodes.BadValue, Messages.EmptyList(where), node);
+                }
+
+                foreach (var entry in map.Entries)
+                {
+                    if (MapReader.ReadText(entry.Value, map.Path(entry.Key.Text), map.Sink) is { } text)
+                    {
+                        items.Add((entry.Key.Text, entry.Key, text, entry.Value));
+                    }
+                }
+
+                break;
+            default:
+                model.Sink.Add(RecipeCodes.BadValue, Messages.ExpectedList(where), node);
                 return null;
         }
+
+        if (items.Count > MaxTerms)
+        {
+            model.Sink.Add(RecipeCodes.BadValue, Messages.TooManyTerms(where, items.Count, MaxTerms), node);
+            return null;
+        }
+
+        var symbols = BasisTerm.InputSymbols(inputCount);
+        var terms = new List<BasisTerm>();
+        var ok = items.Count > 0;
+        foreach (var (name, nameNode, text, at) in items)
+        {
+            if (name is not null && !IsParameterName(name))
+            {
+                model.Sink.Add(RecipeCodes.BadValue, Messages.BadParameterName(where, name), nameNode);
+                ok = false;
+            }
+
+            var (term, error) = BasisTermParser.Parse(text, inputCount);
+            if (error is not null)
+            {
+                var message = error.Kind switch
+                {
+                    TermErrorKind.UnknownFunction => Messages.TermUnknownFunction(where, text, error.Token, SuggestFunction(error.Token)),
+                    TermErrorKind.UnknownInput => Messages.TermUnknownInput(where, text, error.Token, SuggestInput(error.Token, symbols), symbols),
+                    TermErrorKind.BadPower => Messages.TermBadPower(where, text, error.Token, error.Expected),
+                    _ => Messages.TermSyntax(where, text, error.Position, error.Expected),
+                };
+                model.Sink.Add(RecipeCodes.BadValue, message, at);
+                ok = false;
+                continue;
+            }
+
+            if (terms.FirstOrDefault(t => t.Equals(term)) is { } earlier)
+            {
+                model.Sink.Add(RecipeCodes.Contradiction, Messages.DuplicateTerm(where, text, earlier.Text), at);
+                ok = false;
+                continue;
+            }
+
+            terms.Add(term!);
+        }
+
+        if (!ok)
+        {
+            return null;
+        }
+
+        return items[0].Name is null
+            ? new BasisModel(terms, inputCount)
+            : new BasisModel(terms, inputCount, items.Select(i => i.Name!));
+    }
+
+    /// <summary>The function meant: 'log' (and 'loge') is the natural logarithm of most languages, so 'ln'; else the closest name.</summary>
+    private static string? SuggestFunction(string token) =>
+        token.ToUpperInvariant() is "LOG" or "LOGE" ? "ln" : Suggestions.Closest(token, BasisTermParser.Functions);
+
+    /// <summary>No suggestion for an input number the recipe does not have (x3 of two inputs): the message lists the inputs.</summary>
+    private static string? SuggestInput(string token, IReadOnlyCollection<string> symbols) =>
+        token.Length > 1 && (token[0] is 'x' or 'X') && token[1..].All(char.IsAsciiDigit) && symbols.Count > 1 ? null : Suggestions.Closest(token, symbols);
+
+    private static bool IsParameterName(string name) =>
+        name.Length is > 0 and <= 32 && char.IsAsciiLetter(name[0]) && name.All(c => char.IsAsciiLetterOrDigit(c) || c == '_');
+
+    /// <summary>The weights: the uncertainty column, the rule, or neither (an unweighted fit). Null after a problem.</summary>
+    private static Weights? ReadWeights(MapReader top)
+    {
+        var weights = top.Map("weights", WeightKeys, required: false);
+        if (weights is null)
+        {
+            return top.Has("weights") ? null : new Weights(null, null);
+        }
+
+        var column = weights.Text("column", required: false);
+        var hasRule = weights.Has("u_fixed") || weights.Has("u_relative");
+        if (weights.Has("column") && hasRule)
+        {
+            weights.Sink.Add(RecipeCodes.Contradiction, Messages.WeightsTwoSources(weights.Where), weights.Mapping);
+            return null;
+        }
+
+        if (weights.Has("column"))
+        {
+            return column is null ? null : new Weights(column, null);
+        }
+
+        if (!hasRule)
+        {
+            weights.Sink.Add(RecipeCodes.MissingKey, Messages.WeightsNeedSource(weights.Where), weights.Mapping);
+            return null;
+        }
+
+        var fixedPart = weights.Number("u_fixed", required: true);
+        var relative = weights.Number("u_relative", required: true);
+        if (fixedPart is null || relative is null)
+        {
+            return null;
+        }
+
+        var ok = true;
+        foreach (var (key, value) in new[] { ("u_fixed", fixedPart.Value), ("u_relative", relative.Value) })
+        {
+            if (value < 0)
+            {
+                weights.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(weights.Path(key), Numbers.Format(value), "0 or more"), weights.Node(key));
+                ok = false;
+            }
+        }
+
+        if (ok && fixedPart.Value == 0 && relative.Value == 0)
+        {
+            weights.Sink.Add(RecipeCodes.BadValue, Messages.WeightRuleZero(weights.Where), weights.Mapping);
+            ok = false;
+        }
+
+        return ok ? new Weights(null, new WeightRule(fixedPart.Value, relative.Value)) : null;
     }
 
     private static ConfidenceLevel? ReadConfidence(MapReader top)
@@ -467,4 +723,6 @@ public static class RecipeBinder
 
         return new RunsGate(floor.Value);
     }
+
+    private sealed record Weights(string? Column, WeightRule? Rule);
 }

@@ -79,6 +79,14 @@ public static class RecipeJsonSchema
                     ["description"] = spec.Description,
                     ["additionalProperties"] = inner,
                 };
+            case ValueKind.TextOrList:
+                return new JsonObject
+                {
+                    ["description"] = spec.Description,
+                    ["oneOf"] = new JsonArray(
+                        new JsonObject { ["type"] = "string", ["minLength"] = 1 },
+                        new JsonObject { ["type"] = "array", ["items"] = new JsonObject { ["type"] = "string", ["minLength"] = 1 }, ["minItems"] = 1 }),
+                };
             case ValueKind.TextList:
                 var item = new JsonObject { ["type"] = "string", ["minLength"] = 1 };
                 if (!spec.Choices.IsDefaultOrEmpty)

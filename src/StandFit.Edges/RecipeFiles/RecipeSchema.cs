@@ -10,6 +10,9 @@ public enum ValueKind
     Integer,
     Boolean,
     TextList,
+
+    /// <summary>One text, or a list of texts (several stimulus columns).</summary>
+    TextOrList,
     Map,
 
     /// <summary>A mapping whose keys are names the author chooses (figures, derived figures); each value follows <see cref="KeySpec.Children"/>.</summary>
@@ -43,7 +46,8 @@ public sealed record KeySpec(string Name, ValueKind Kind, string Description)
 /// </summary>
 public static class RecipeSchema
 {
-    public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial"];
+    public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial", "basis", "steinhart-hart", "callendar-van-dusen"];
+    public static readonly ImmutableArray<string> TemperatureUnits = ["kelvin", "celsius"];
     public static readonly ImmutableArray<string> Rules = ["guarded", "simple"];
     public static readonly ImmutableArray<string> LegNames = ["up", "down"];
 
@@ -66,7 +70,7 @@ public static class RecipeSchema
                 Required = true,
                 Children =
                 [
-                    new("stimulus", ValueKind.Text, "The stimulus column (the reference reading).") { Required = true },
+                    new("stimulus", ValueKind.TextOrList, "The stimulus column (the reference reading), or a list of up to 9 columns for a model of several inputs (x1, x2, ... in order).") { Required = true },
                     new("output", ValueKind.Text, "The unit's output column.") { Required = true },
                     new("leg", ValueKind.Text, "The column of 'up'/'down' leg labels."),
                     new("order", ValueKind.Text, "The acquisition order or time column; default: file order."),
@@ -76,7 +80,7 @@ public static class RecipeSchema
             {
                 Children =
                 [
-                    new("stimulus", ValueKind.Text, "Unit of the stimulus, e.g. kPa.") { Required = true },
+                    new("stimulus", ValueKind.TextOrList, "Unit of the stimulus, e.g. kPa (a list, one per stimulus column, for several inputs).") { Required = true },
                     new("output", ValueKind.Text, "Unit of the output, e.g. mV.") { Required = true },
                 ],
             },
@@ -85,8 +89,19 @@ public static class RecipeSchema
                 Required = true,
                 Children =
                 [
-                    new("type", ValueKind.Text, "straight-line, straight-line-through-zero or polynomial.") { Required = true, Choices = ModelTypes },
+                    new("type", ValueKind.Text, "straight-line, straight-line-through-zero, polynomial, basis, steinhart-hart or callendar-van-dusen.") { Required = true, Choices = ModelTypes },
                     new("degree", ValueKind.Integer, "Polynomial degree, 1 to 10 (type: polynomial only).") { Minimum = 1, Maximum = 10 },
+                    new("terms", ValueKind.TextList, "The basis terms of type: basis, e.g. [1, ln(x), ln(x)^3] or [1, x1, x2, x1*x2] (docs/recipes.md lists the functions)."),
+                    new("temperature", ValueKind.Text, "type: steinhart-hart only: the unit of the fitted temperature, kelvin or celsius.") { Choices = TemperatureUnits },
+                ],
+            },
+            new("weights", ValueKind.Map, "Weighted least squares: standard uncertainties from a column, or the rule u = u_fixed + u_relative |y|.")
+            {
+                Children =
+                [
+                    new("column", ValueKind.Text, "The column of standard uncertainties of the output (w = 1/u^2)."),
+                    new("u_fixed", ValueKind.Number, "The fixed part of the rule, in output units.") { Minimum = 0 },
+                    new("u_relative", ValueKind.Number, "The part proportional to the reading, as a fraction.") { Minimum = 0 },
                 ],
             },
             new("confidence", ValueKind.Number, "Two-sided confidence level of every interval, as a fraction (0.95 is 95 %).") { Required = true, Minimum = 0.5, Maximum = 0.999999 },

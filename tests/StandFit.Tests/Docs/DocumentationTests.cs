@@ -61,7 +61,8 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
         var page = Page("outputs.md");
         var columns = JsonNames(typeof(SummaryRecord));
         var fields = JsonNames(typeof(ParameterRecord));
-        foreach (var name in columns.Concat(fields))
+        var derivedFields = JsonNames(typeof(DerivedRecord));
+        foreach (var name in columns.Concat(fields).Concat(derivedFields))
         {
             Assert.True(page.Contains("`" + name + "`", StringComparison.Ordinal), $"docs/outputs.md does not mention `{name}`.");
         }
@@ -71,6 +72,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
         Assert.Equal(columns.Append("date"), documentedColumns);
         var documentedFields = CodeRows(page, "#### Fields of `parameters`").Select(r => r.Code).ToList();
         Assert.Equal(fields, documentedFields);
+        Assert.Equal(derivedFields, CodeRows(page, "#### Fields of `derived`").Select(r => r.Code).ToList());
     }
 
     [Fact]
@@ -118,6 +120,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
             .Concat(Paths("columns.", RecipeBinder.ColumnKeys))
             .Concat(Paths("units.", RecipeBinder.UnitKeys))
             .Concat(Paths("model.", RecipeBinder.ModelKeys))
+            .Concat(Paths("weights.", RecipeBinder.WeightKeys))
             .Concat(Paths("limits.<figure>.", RecipeBinder.LimitKeys))
             .Concat(Paths("gates.", RecipeBinder.GateKeys))
             .Concat(Paths("gates.runs_test.", RecipeBinder.RunsGateKeys))

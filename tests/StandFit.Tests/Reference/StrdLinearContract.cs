@@ -40,7 +40,7 @@ public abstract class StrdLinearContract
     /// <summary>The smallest LRE accepted for the estimates, where a dataset is known to fall short of <see cref="MinimumLre"/>.</summary>
     protected virtual double MinimumEstimateLre => MinimumLre;
 
-    private StrdFile Dataset => StrdFile.Linear(DatasetFile);
+    protected StrdFile Dataset => StrdFile.Linear(DatasetFile);
 
     private FitResult Fit => _fit ??= FitDataset();
 
@@ -72,20 +72,23 @@ public abstract class StrdLinearContract
     public void R_squared_matches_the_certified_value() =>
         AssertAll("R-squared", [Score("R2", Fit.RSquared, Dataset.RSquared, 1.0)]);
 
+    /// <summary>The model's name of a certified parameter: offset, gain, c2 ... for the polynomial files.</summary>
+    protected virtual string ParameterName(StrdParameter parameter) => Polynomial.NameOfPower(parameter.Power);
+
+    /// <summary>The size a coefficient of x^k needs to move y by max|y|: max|y| / max|x|^k (files of one predictor).</summary>
+    protected virtual double ParameterSize(StrdParameter parameter) =>
+        MaxAbs(Dataset.Y) / Math.Pow(MaxAbs(Dataset.X), parameter.Power);
+
+    protected static double MaxAbs(ImmutableArray<double> values) => values.Max(Math.Abs);
+
     private FitResult FitDataset()
     {
-        var result = LeastSquaresFitter.Fit(Model, Dataset.X, Dataset.Y, DatasetFile);
+        var result = LeastSquaresFitter.Fit(Model, new FitData(Dataset.Predictors, Dataset.Y) { SourceName = DatasetFile });
         Assert.True(result.IsSuccess, DatasetFile + ": the fit failed: " + string.Join("; ", result.Problems.Select(p => p.ToString())));
         return result.Value;
     }
 
-    private int IndexOf(StrdParameter parameter) => Fit.IndexOf(Polynomial.NameOfPower(parameter.Power));
-
-    /// <summary>The size a coefficient of x^k needs to move y by max|y|: max|y| / max|x|^k.</summary>
-    private double ParameterSize(StrdParameter parameter) =>
-        MaxAbs(Dataset.Y) / Math.Pow(MaxAbs(Dataset.X), parameter.Power);
-
-    private static double MaxAbs(ImmutableArray<double> values) => values.Max(Math.Abs);
+    private int IndexOf(StrdParameter parameter) => Fit.IndexOf(ParameterName(parameter));
 
     private static Scored Score(string name, double estimate, double certified, double sizeIfZero)
     {

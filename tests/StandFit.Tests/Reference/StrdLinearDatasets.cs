@@ -1,10 +1,11 @@
+using System.Globalization;
 using StandFit.Core.Fitting;
+using StandFit.Tests.Support;
 using Xunit.Abstractions;
 
 namespace StandFit.Tests.Reference;
 
 // One subclass per NIST StRD linear-regression dataset: the file, the certified model, the minimum LRE.
-// Longley.dat (six predictors) is not covered: the fitter takes a single stimulus so far.
 
 /// <summary>NIST StRD Norris.dat, certified values: straight line, lower difficulty.</summary>
 public sealed class StrdNorrisTests(ITestOutputHelper output) : StrdLinearContract(output)
@@ -49,14 +50,17 @@ public sealed class StrdNoInt2Tests(ITestOutputHelper output) : StrdLinearContra
     protected override double MinimumLre => 9;
 }
 
-/// <summary>NIST StRD Filip.dat, certified values: degree-10 polynomial, higher difficulty (near-collinear).</summary>
+/// <summary>
+/// NIST StRD Filip.dat, certified values: degree-10 polynomial, higher difficulty (near-collinear).
+/// With the augmented-system refinement every certified value reaches LRE 13.8 or more (measured).
+/// </summary>
 public sealed class StrdFilipTests(ITestOutputHelper output) : StrdLinearContract(output)
 {
     protected override string DatasetFile => "Filip.dat";
 
     protected override LinearModel Model => Polynomial.OfDegree(10);
 
-    protected override double MinimumLre => 7;
+    protected override double MinimumLre => 9;
 }
 
 /// <summary>
@@ -113,10 +117,29 @@ public sealed class StrdWampler5Tests(ITestOutputHelper output) : StrdLinearCont
 
     protected override LinearModel Model => Polynomial.OfDegree(5);
 
+    // Wampler5's residuals are large: refining the coefficients alone reached only LRE 7.15 on B1.
+    // The fitter refines the augmented system (residuals and coefficients together, Björck), which
+    // reaches the 15 printed digits on every estimate (measured), so the common minimum applies.
+    protected override double MinimumLre => 9;
+}
+
+/// <summary>
+/// NIST StRD Longley.dat, certified values: y = B0 + B1 x1 + ... + B6 x6, six predictors, higher
+/// difficulty (near-collinear). Fitted as a basis model of six inputs with the terms 1, x1 ... x6
+/// (parameters b0 ... b6), every input centred and scaled.
+/// </summary>
+public sealed class StrdLongleyTests(ITestOutputHelper output) : StrdLinearContract(output)
+{
+    protected override string DatasetFile => "Longley.dat";
+
+    protected override LinearModel Model { get; } = new BasisModel(
+        [BasisTerm.Constant(6), .. Enumerable.Range(0, 6).Select(k => BasisTerm.Power(6, k, 1))], 6);
+
     protected override double MinimumLre => 9;
 
-    // Known shortfall, measured: the estimates reach LRE 7.15 (B1) after double-double refinement of
-    // the residuals; Wampler5's residuals are large, so the refinement of the solution alone does not
-    // reach 9 (it needs refinement of the augmented system). Target 9 stays open in the fitting issue.
-    protected override double MinimumEstimateLre => 7;
+    protected override string ParameterName(StrdParameter parameter) => "b" + parameter.Power.ToString(CultureInfo.InvariantCulture);
+
+    /// <summary>B0 against max|y|, Bk against max|y| / max|x_k|.</summary>
+    protected override double ParameterSize(StrdParameter parameter) =>
+        parameter.Power == 0 ? MaxAbs(Dataset.Y) : MaxAbs(Dataset.Y) / MaxAbs(Dataset.Predictors[parameter.Power - 1]);
 }
