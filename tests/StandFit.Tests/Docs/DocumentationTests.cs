@@ -4,6 +4,7 @@ using System.Text.Json.Serialization;
 using System.Text.RegularExpressions;
 using System.Xml.Linq;
 using Microsoft.Extensions.Logging;
+using StandFit.Core.Evaluation;
 using StandFit.Core.Problems;
 using StandFit.Edges.Configuration;
 using StandFit.Edges.Logging;
@@ -115,33 +116,121 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
     [Fact]
     public void Every_recipe_key_is_documented()
     {
-        // Each key is documented at its place, as a backticked path: `columns.stimulus`, `folders.inbox`.
-        var recipeKeys = Paths("", RecipeBinder.TopKeys)
-            .Concat(Paths("columns.", RecipeBinder.ColumnKeys))
-            .Concat(Paths("units.", RecipeBinder.UnitKeys))
-            .Concat(Paths("model.", RecipeBinder.ModelKeys))
-            .Concat(Paths("weights.", RecipeBinder.WeightKeys))
-            .Concat(Paths("limits.<figure>.", RecipeBinder.LimitKeys))
-            .Concat(Paths("gates.", RecipeBinder.GateKeys))
-            .Concat(Paths("gates.runs_test.", RecipeBinder.RunsGateKeys))
-            .ToList();
+        // Each key is documented at its place, as a backticked path: `columns.stimulus`,
+        // `limits.<figure>.coverage_factor`, `folders.inbox`. The recipe keys come from the one
+        // description of the language the reader and the JSON Schema use.
+        var recipeKeys = RecipeSchema.Paths().ToList();
         var configKeys = Paths("", ConfigLoader.TopKeys)
             .Concat(Paths("folders.", ConfigLoader.FolderKeys))
             .Concat(Paths("reader.", ConfigLoader.ReaderKeys))
             .Concat(Paths("watch.", ConfigLoader.WatchKeys))
             .Concat(Paths("output.", ConfigLoader.OutputKeys))
             .ToList();
+        Assert.Contains("decision.rule", recipeKeys);
+        Assert.Contains("derived.<name>.sensitivity_at", recipeKeys);
 
         var page = Page("recipes.md");
-        foreach (var key in recipeKeys.Concat(configKeys).Concat(RecipeBinder.ModelTypes))
+        foreach (var key in recipeKeys.Concat(configKeys).Concat(RecipeSchema.ModelTypes).Concat(RecipeSchema.Rules).Concat(RecipeSchema.LegNames))
         {
             Assert.True(page.Contains("`" + key + "`", StringComparison.Ordinal), $"docs/recipes.md does not mention `{key}`.");
         }
 
-        // The key tables hold exactly the keys the binders accept, nothing stale.
+        // The key tables hold exactly the keys and choices the code accepts, nothing stale.
         Assert.Equal(recipeKeys.Order(StringComparer.Ordinal), CodeRows(page, "## Recipe keys").Select(r => r.Code).Order(StringComparer.Ordinal));
-        Assert.Equal(RecipeBinder.ModelTypes.Order(StringComparer.Ordinal), CodeRows(page, "### Model types").Select(r => r.Code).Order(StringComparer.Ordinal));
+        Assert.Equal(RecipeSchema.ModelTypes.Order(StringComparer.Ordinal), CodeRows(page, "### Model types").Select(r => r.Code).Order(StringComparer.Ordinal));
+        Assert.Equal(RecipeSchema.Rules.Order(StringComparer.Ordinal), CodeRows(page, "### Decision rules").Select(r => r.Code).Order(StringComparer.Ordinal));
         Assert.Equal(configKeys.Order(StringComparer.Ordinal), CodeRows(page, "## Configuration file").Select(r => r.Code).Order(StringComparer.Ordinal));
+    }
+
+    [Fact]
+    public void The_recipe_key_table_agrees_with_the_schema_on_what_is_required_the_kind_and_the_range()
+    {
+        var rows = CodeRows(Page("recipes.md"), "## Recipe keys").ToDictionary(r => r.Code, r => r.Cells, StringComparer.Ordinal);
+        foreach (var (path, spec) in Specs(RecipeSchema.Root, ""))
+        {
+            var cells = rows[path];
+
+            // "required" or "required in `parent`" exactly when the schema requires the key; conditions
+            // ("required unless ...", "at least one of ...") are for keys the schema leaves optional.
+            var required = cells[1] == "required" || cells[1].StartsWith("required in ", StringComparison.Ordinal);
+            Assert.True(required == spec.Required, $"`{path}`: the schema says required = {spec.Required}, docs/recipes.md says '{cells[1]}'.");
+
+            var kind = spec.Kind switch
+            {
+                ValueKind.Text => "text",
+                ValueKind.Number => "number",
+                ValueKind.Integer => "whole number",
+                ValueKind.Boolean => "true or false",
+                ValueKind.TextList => "list of text",
+                ValueKind.Map => "mapping",
+                ValueKind.NamedMaps => "mapping by name",
+                _ => throw new InvalidOperationException(spec.Kind.ToString()),
+            };
+            Assert.True(cells[2] == kind, $"`{path}` is of kind {spec.Kind}, so its type should read '{kind}', not '{cells[2]}'.");
+
+            foreach (var bound in new[] { spec.Minimum, spec.Maximum })
+            {
+                if (bound is { } b)
+                {
+                    var shown = b.ToString(CultureInfo.InvariantCulture);
+                    Assert.True(
+                        Regex.IsMatch(cells[5], @"(?<![\d.])" + Regex.Escape(shown) + @"(?!\d|\.\d)", RegexOptions.CultureInvariant),
+                        $"`{path}` is bounded by {shown} in the schema, but its row in docs/recipes.md does not say so: {cells[5]}");
+                }
+            }
+        }
+    }
+
+    [Fact]
+    public void The_figure_table_lists_every_figure_every_fit_produces()
+    {
+        var rows = CodeRows(Page("recipes.md"), "### Figures a limit can name").Select(r => r.Code).ToList();
+
+        Assert.Equal(["<parameter>", "<parameter>" + FigureTable.HalfWidthSuffix, "<name>", .. FigureTable.FitFigures], rows);
+    }
+
+    [Fact]
+    public void The_shipped_recipe_shown_in_the_docs_is_the_file_as_shipped()
+    {
+        var shown = ShippedRecipeBlock().Matches(Page("recipes.md")).ToList();
+
+        Assert.NotEmpty(shown);
+        foreach (Match block in shown)
+        {
+            var path = block.Groups["path"].Value;
+            var file = File.ReadAllText(RepoPaths.InRepo(path.Split('/'))).Replace("\r\n", "\n", StringComparison.Ordinal);
+            Assert.True(file == block.Groups["body"].Value, $"docs/recipes.md shows {path}, but the file has changed since: update the example.");
+        }
+    }
+
+    [Fact]
+    public void Every_recipe_example_in_the_docs_loads_together_without_a_problem()
+    {
+        using var folder = new TempFolder();
+        var examples = RecipeExamples(folder);
+
+        var catalog = RecipeCatalog.Load(folder.Path);
+
+        Assert.True(catalog.IsValid, catalog.Report());
+        Assert.Equal(examples.Count(e => !e.Contains("\nfamily: true\n", StringComparison.Ordinal)), catalog.Recipes.Length);
+        Assert.Contains(catalog.Recipes, r => r.Extends is not null);
+    }
+
+    [Fact]
+    public void The_recipes_explain_example_is_what_explain_prints_for_the_documented_family_and_variant()
+    {
+        using var folder = new TempFolder();
+        RecipeExamples(folder);
+        var catalog = RecipeCatalog.Load(folder.Path);
+        var recipe = catalog.ForPart("KP-250-HT");
+        Assert.NotNull(recipe);
+
+        var section = Section(Page("recipes.md"), "### `standfit recipes explain PART`");
+        var output = FencedBlocks().Matches(section).Select(m => m.Groups["body"].Value).Single(b => b.StartsWith("# effective recipe", StringComparison.Ordinal));
+        var header = output[..(output.IndexOf('\n', StringComparison.Ordinal) + 1)];
+
+        Assert.Equal($"# effective recipe for part KP-250-HT: {recipe.Name} version {recipe.Version}, sha256 {recipe.ContentHash}\n", header);
+        Assert.Equal(catalog.Explain(recipe), output[header.Length..]);
     }
 
     [Fact]
@@ -199,7 +288,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
         XNamespace ns = "http://www.w3.org/2000/svg";
         Assert.Equal(ns + "svg", svg.Root!.Name);
         var text = string.Join(' ', svg.Descendants(ns + "text").Select(t => t.Value));
-        foreach (var label in new[] { "pass", "retest", "fail", "lower limit", "upper limit" })
+        foreach (var label in new[] { "pass", "retest", "fail", "conditional pass", "conditional fail", "lower tolerance limit", "upper tolerance limit", "lower acceptance limit", "upper acceptance limit", "guard band", "simple acceptance", "guarded acceptance" })
         {
             Assert.Contains(label, text, StringComparison.Ordinal);
         }
@@ -246,6 +335,47 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
             .Select(a => a.Name)];
 
     private static IEnumerable<string> Paths(string prefix, IEnumerable<string> keys) => keys.Select(k => prefix + k);
+
+    /// <summary>Every key of the language with its dotted path, in the same form as <see cref="RecipeSchema.Paths"/>.</summary>
+    private static IEnumerable<(string Path, KeySpec Spec)> Specs(KeySpec spec, string prefix)
+    {
+        foreach (var child in spec.Children)
+        {
+            var path = prefix + child.Name;
+            yield return (path, child);
+            var inner = child.Kind == ValueKind.NamedMaps ? path + (child.Name == "limits" ? ".<figure>." : ".<name>.") : path + ".";
+            foreach (var nested in Specs(child, inner))
+            {
+                yield return nested;
+            }
+        }
+    }
+
+    /// <summary>
+    /// Writes every complete recipe example of docs/recipes.md (a yaml block with a top-level
+    /// 'recipe:') into <paramref name="folder"/>, named by its first line ("# kp-family.yaml: ...")
+    /// or example-N.yaml, and returns their texts.
+    /// </summary>
+    private static List<string> RecipeExamples(TempFolder folder)
+    {
+        var texts = new List<string>();
+        foreach (Match block in FencedBlocks().Matches(Page("recipes.md")))
+        {
+            var body = block.Groups["body"].Value;
+            if (block.Groups["lang"].Value != "yaml" || !Regex.IsMatch(body, "^recipe:", RegexOptions.Multiline | RegexOptions.CultureInvariant))
+            {
+                continue;
+            }
+
+            var named = Regex.Match(body, @"^# (?<name>[a-z0-9-]+\.yaml):", RegexOptions.CultureInvariant);
+            var name = named.Success ? named.Groups["name"].Value : string.Create(CultureInfo.InvariantCulture, $"example-{texts.Count + 1}.yaml");
+            File.WriteAllText(Path.Combine(folder.Path, name), body);
+            texts.Add(body);
+        }
+
+        Assert.True(texts.Count >= 3, "docs/recipes.md should show the demo recipe, a family and a variant.");
+        return texts;
+    }
 
     /// <summary>The lines under a heading, up to the next heading of any level (fenced code is skipped over).</summary>
     private static string Section(string page, string heading)
@@ -294,6 +424,12 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
 
     [GeneratedRegex(@"^```sql[ \t]*\n(?<sql>.*?)^```[ \t]*$", RegexOptions.Multiline | RegexOptions.Singleline | RegexOptions.CultureInvariant)]
     private static partial Regex SqlBlock();
+
+    [GeneratedRegex(@"^```(?<lang>[a-z]*)[ \t]*\n(?<body>.*?)^```[ \t]*$", RegexOptions.Multiline | RegexOptions.Singleline | RegexOptions.CultureInvariant)]
+    private static partial Regex FencedBlocks();
+
+    [GeneratedRegex(@"This is `(?<path>config/recipes/[^`]+\.yaml)`[^\n]*:\n\n```yaml\n(?<body>.*?)^```", RegexOptions.Multiline | RegexOptions.Singleline | RegexOptions.CultureInvariant)]
+    private static partial Regex ShippedRecipeBlock();
 
     [GeneratedRegex(@"(?<!\\)\|", RegexOptions.CultureInvariant)]
     private static partial Regex CellSplit();
