@@ -62,7 +62,7 @@ public static class Messages
     public static string GuardedNeedsUncertainty(string figure) => F($"limit on '{figure}' uses the guarded rule, but '{figure}' has no uncertainty of its own; give it 'rule: simple'.");
     public static string NeedsLegColumn(string where) => F($"{where} needs 'columns.leg' so the legs can be told apart.");
     public static string NeedsRange(string where) => F($"{where} needs 'sweep.range' (the nominal stimulus range).");
-    public static string DecisionNeeded() => "the recipe has limits but no 'decision' section; say 'decision: {{ rule: guarded }}' or 'rule: simple' so the decision rule is agreed, not assumed.";
+    public static string DecisionNeeded() => "the recipe has limits but no 'decision' section; say 'decision: { rule: guarded }' or 'rule: simple' so the decision rule is agreed, not assumed.";
     public static string CoverageWithoutGuarded(string where) => F($"{where} gives a coverage factor but the rule is 'simple'; remove 'coverage_factor' or use 'rule: guarded'.");
     public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at' or 'value_at'.");
     public static string DerivedNameClash(string name) => F($"derived figure '{name}' has the name of a figure the fit already produces; choose another name.");

@@ -604,8 +604,8 @@ public static class RecipeBinder
 
     /// <summary>The figures a recipe can limit, in the order a reader expects: parameters, half-widths, derived, fit figures.</summary>
     private static IEnumerable<string> FigureOrder(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
-        model.ParameterNames
-            .Concat(model.ParameterNames.Select(p => p + FigureTable.HalfWidthSuffix))
+        model.ParameterNames.Concat(model.DerivedNames)
+            .Concat(model.ParameterNames.Concat(model.DerivedNames).Select(p => p + FigureTable.HalfWidthSuffix))
             .Concat(derived.Select(d => d.Name))
             .Concat(FigureTable.FitFigures);
 

@@ -162,6 +162,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
                 ValueKind.Integer => "whole number",
                 ValueKind.Boolean => "true or false",
                 ValueKind.TextList => "list of text",
+                ValueKind.TextOrList => "text, or a list of text",
                 ValueKind.Map => "mapping",
                 ValueKind.NamedMaps => "mapping by name",
                 _ => throw new InvalidOperationException(spec.Kind.ToString()),

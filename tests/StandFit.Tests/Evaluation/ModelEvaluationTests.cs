@@ -67,6 +67,8 @@ public sealed class ModelEvaluationTests
             model:
               type: basis
               terms: [1, x1, x2, x1^2, x1*x2]
+            decision:
+              rule: guarded
             limits:
               b1: { min: 0.019, max: 0.021 }
             """);
@@ -94,6 +96,8 @@ public sealed class ModelEvaluationTests
               output: ohm
             model:
               type: callendar-van-dusen
+            decision:
+              rule: guarded
             limits:
               R0: { min: 99.94, max: 100.06 }
               A: { min: 3.90e-3, max: 3.92e-3 }

@@ -188,7 +188,7 @@ public sealed class RecipeModelBindingTests
     [Fact]
     public void A_limit_on_a_derived_callendar_van_dusen_figure_binds()
     {
-        var recipe = Bind(Recipe("  stimulus: temp_C", "  type: callendar-van-dusen", "limits:\n  A: { min: 3.9e-3, max: 3.92e-3 }\n  R0: { min: 99.94, max: 100.06 }")).Value;
+        var recipe = Bind(Recipe("  stimulus: temp_C", "  type: callendar-van-dusen", "decision:\n  rule: guarded\nlimits:\n  A: { min: 3.9e-3, max: 3.92e-3 }\n  R0: { min: 99.94, max: 100.06 }")).Value;
 
         Assert.Same(CallendarVanDusen.AboveZero, recipe.Model);
         Assert.Equal<string>(["A", "R0"], recipe.Limits.Select(l => l.Figure));
@@ -197,7 +197,7 @@ public sealed class RecipeModelBindingTests
     [Fact]
     public void A_limit_on_a_figure_the_model_lacks_lists_the_parameters_and_the_derived_figures()
     {
-        var problem = SingleProblem(Recipe("  stimulus: temp_C", "  type: callendar-van-dusen", "limits:\n  C: { max: 1 }"));
+        var problem = SingleProblem(Recipe("  stimulus: temp_C", "  type: callendar-van-dusen", "decision:\n  rule: guarded\nlimits:\n  C: { max: 1 }"));
 
         Assert.Equal(RecipeCodes.UnknownFigure, problem.Code);
         Assert.Contains("offset, gain, c2, R0, A, B, alpha", problem.Message, StringComparison.Ordinal);
