@@ -18,6 +18,12 @@ internal static class DoubleDoubleMath
     private const double PiOver2Mid = 6.123233995736766e-17;
     private const double PiOver2Lo = -1.4973849048591698e-33;
 
+    private const int ExpDegree = 9;
+    private const int TrigTerms = 13;
+
+    /// <summary>1/n! for n = 0..27, each to double-double precision (computed once by division).</summary>
+    private static readonly DoubleDouble[] InverseFactorials = MakeInverseFactorials((2 * TrigTerms) + 2);
+
     /// <summary>pi as a double-double.</summary>
     public static DoubleDouble Pi { get; } = new(3.141592653589793, 1.2246467991473532e-16);
 
@@ -114,24 +120,20 @@ internal static class DoubleDoubleMath
             return Of(0.0);
         }
 
-        // a = k ln 2 + r, |r| <= ln2 / 2; exp(r) - 1 from the series at r / 2^10, then doubled back
-        // ten times by (1 + s)^2 - 1 = s (2 + s), which keeps the small quantity s accurate.
+        // a = k ln 2 + r, |r| <= ln2 / 2; exp(r) - 1 from its Taylor polynomial at r / 2^10
+        // (|r| < 3.4e-4, so degree 9 leaves less than 1e-35), then doubled back ten times by
+        // (1 + s)^2 - 1 = s (2 + s), which keeps the small quantity s accurate.
         const int Halvings = 10;
         var k = Math.Round(a.Hi / Ln2.Hi);
         var r = Subtract(a, Multiply(Ln2, k));
         r = new DoubleDouble(Math.ScaleB(r.Hi, -Halvings), Math.ScaleB(r.Lo, -Halvings));
-        var s = r;
-        var term = r;
-        for (var i = 2; i < 30; i++)
+        var s = InverseFactorials[ExpDegree];
+        for (var i = ExpDegree - 1; i >= 1; i--)
         {
-            term = Divide(Multiply(term, r), i);
-            s = Add(s, term);
-            if (Math.Abs(term.Hi) <= 1e-36 * Math.Abs(s.Hi))
-            {
-                break;
-            }
+            s = Add(Multiply(s, r), InverseFactorials[i]);
         }
 
+        s = Multiply(s, r);
         for (var i = 0; i < Halvings; i++)
         {
             s = Multiply(s, Add(s, Of(2.0)));
@@ -182,6 +184,14 @@ internal static class DoubleDoubleMath
         if (double.IsInfinity(a.Hi))
         {
             return Multiply(new DoubleDouble(PiOver2Hi, PiOver2Mid), Math.Sign(a.Hi));
+        }
+
+        // Beyond 1, atan(a) = sign(a) pi/2 - atan(1/a): Newton's step on tan is then accurate
+        // (its second-order error grows with tan x).
+        if (Math.Abs(a.Hi) > 1.0)
+        {
+            var halfPi = Multiply(new DoubleDouble(PiOver2Hi, PiOver2Mid), Math.Sign(a.Hi));
+            return Subtract(halfPi, Atan(Divide(One, a)));
         }
 
         // One Newton step on tan(x) = a from the double arctangent: x + (a cos x - sin x) cos x.
@@ -267,23 +277,17 @@ internal static class DoubleDoubleMath
         r = Subtract(r, TwoProduct(k, PiOver2Mid));
         r = Subtract(r, Of(k * PiOver2Lo));
 
+        // Taylor polynomials in r^2 by Horner's rule; |r| <= pi/4, so the terms left out are below 1e-33.
         var r2 = Multiply(r, r);
-        var sin = r;
-        var cos = One;
-        var term = r;          // r^(2i+1) / (2i+1)!, signed
-        var cosTerm = One;     // r^(2i) / (2i)!, signed
-        for (var i = 1; i < 30; i++)
+        var sin = Signed(InverseFactorials[(2 * TrigTerms) + 1], TrigTerms);
+        var cos = Signed(InverseFactorials[2 * TrigTerms], TrigTerms);
+        for (var i = TrigTerms - 1; i >= 0; i--)
         {
-            cosTerm = Negate(Divide(Multiply(cosTerm, r2), (2.0 * i) * ((2.0 * i) - 1)));
-            term = Negate(Divide(Multiply(term, r2), (2.0 * i) * ((2.0 * i) + 1)));
-            cos = Add(cos, cosTerm);
-            sin = Add(sin, term);
-            if (Math.Abs(cosTerm.Hi) <= 1e-36 && Math.Abs(term.Hi) <= 1e-36 * Math.Max(Math.Abs(sin.Hi), 1e-300))
-            {
-                break;
-            }
+            sin = Add(Multiply(sin, r2), Signed(InverseFactorials[(2 * i) + 1], i));
+            cos = Add(Multiply(cos, r2), Signed(InverseFactorials[2 * i], i));
         }
 
+        sin = Multiply(sin, r);
         var quadrant = (int)(((k % 4) + 4) % 4);
         return quadrant switch
         {
@@ -292,6 +296,20 @@ internal static class DoubleDoubleMath
             2 => (Negate(sin), Negate(cos)),
             _ => (Negate(cos), sin),
         };
+    }
+
+    private static DoubleDouble Signed(DoubleDouble value, int i) => (i & 1) == 0 ? value : Negate(value);
+
+    private static DoubleDouble[] MakeInverseFactorials(int count)
+    {
+        var table = new DoubleDouble[count];
+        table[0] = new DoubleDouble(1.0, 0.0);
+        for (var n = 1; n < count; n++)
+        {
+            table[n] = Divide(table[n - 1], n);
+        }
+
+        return table;
     }
 
     private static DoubleDouble TwoProduct(double a, double b)

@@ -22,8 +22,11 @@ public static class LevenbergMarquardt
     /// </summary>
     public const double RankTolerance = 1e-13;
 
-    /// <summary>Most Gauss-Newton refinement steps with double-double residuals after the search converged.</summary>
+    /// <summary>Most Gauss-Newton refinement steps after the search converged, with residuals in double.</summary>
     private const int RefinementSteps = 30;
+
+    /// <summary>Most refinement steps after those, with residuals in double-double.</summary>
+    private const int PreciseRefinementSteps = 3;
 
     /// <summary>
     /// Fits <paramref name="model"/> to the response <paramref name="y"/> from
@@ -72,7 +75,8 @@ public static class LevenbergMarquardt
         var status = solver.Run(x);
         if (status.IsConverged() && (lower is null || !OnABound(x, lower, upper!)))
         {
-            solver.Refine(x, RefinementSteps);
+            solver.Refine(x, RefinementSteps, precise: false);
+            solver.Refine(x, PreciseRefinementSteps, precise: true);
         }
 
         // Fitted values and residuals at the estimates (the model in double-double, each residual

@@ -599,18 +599,20 @@ internal sealed class LevenbergMarquardtSolver
     }
 
     /// <summary>
-    /// Refines a converged point by Gauss-Newton steps whose residuals are taken in double-double
-    /// (the model evaluated to about 32 digits, the difference from y rounded once), solved by the
-    /// pivoted QR of the Jacobian with unit-norm columns. The search's own stopping tests are
-    /// limited by the rounding of the residuals and of the RSS; near a solution each such step
-    /// removes a fixed fraction of what is left (most of it for a small-residual fit, less where
-    /// the residuals are large and the model curved). A step is taken only while the steps shrink
-    /// by at least 10 %, are not negligible, keep the point inside the bounds and do not make the
-    /// RSS grow beyond rounding. Returns the steps kept.
+    /// Refines a converged point by Gauss-Newton steps solved by the pivoted QR of the Jacobian
+    /// with unit-norm columns. The search's own stopping tests are limited by the rounding of the
+    /// RSS (a relative change below about 1e-16 cannot be seen), while the Gauss-Newton step comes
+    /// from the residuals and the Jacobian directly; near a solution each step removes a fixed
+    /// fraction of what is left (most of it for a small-residual fit, less where the residuals are
+    /// large and the model curved). With <paramref name="precise"/> the residuals are taken in
+    /// double-double (the model to about 32 digits, the difference from y rounded once), which
+    /// matters only for a nearly exact fit. A step is taken only while the steps shrink by at
+    /// least 10 %, are not negligible, keep the point inside the bounds and do not make the RSS
+    /// grow beyond rounding. Returns the steps kept.
     /// </summary>
-    public int Refine(double[] x, int maxSteps)
+    public int Refine(double[] x, int maxSteps, bool precise)
     {
-        if (!PreciseResiduals(x, _f))
+        if (!(precise ? PreciseResiduals(x, _f) : Residuals(x, _f)))
         {
             return 0;
         }
@@ -683,7 +685,7 @@ internal sealed class LevenbergMarquardtSolver
             }
 
             Evaluations++;
-            if (!PreciseResiduals(_xTrial, _fTrial))
+            if (!(precise ? PreciseResiduals(_xTrial, _fTrial) : Residuals(_xTrial, _fTrial)))
             {
                 break;
             }
