@@ -19,6 +19,7 @@ public sealed class ExpressionParseResult
         Error = error;
     }
 
+    /// <summary>True when the expression compiled; then <see cref="Error"/> is null.</summary>
     public bool IsSuccess => _expression is not null;
 
     /// <summary>The compiled expression; throws when the parse failed.</summary>

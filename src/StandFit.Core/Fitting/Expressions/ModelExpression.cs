@@ -39,8 +39,10 @@ public sealed class ModelExpression
     /// <summary>The parameters, in the order of the parameter vector.</summary>
     public ImmutableArray<string> ParameterNames { get; }
 
+    /// <summary>Number of parameters (1 to <see cref="ExpressionLanguage.MaxParameters"/>).</summary>
     public int ParameterCount => ParameterNames.Length;
 
+    /// <summary>Number of variables (0 to <see cref="ExpressionLanguage.MaxVariables"/>).</summary>
     public int VariableCount => VariableNames.Length;
 
     /// <summary>The length of the scratch span <see cref="EvaluateWithGradient"/> needs.</summary>

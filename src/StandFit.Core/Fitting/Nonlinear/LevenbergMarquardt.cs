@@ -49,10 +49,10 @@ public static class LevenbergMarquardt
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(variables);
         options ??= LevenbergMarquardtOptions.Default;
-        var n = y.Length;
         var p = model.ParameterCount;
         var v = model.VariableCount;
         CheckShapes(variables, y, start, v, p);
+        var n = y.Length;
         var (lower, upper) = CheckOptions(options, start, p);
         if (n <= p)
         {

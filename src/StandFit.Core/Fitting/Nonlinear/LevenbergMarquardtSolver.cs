@@ -777,7 +777,4 @@ internal sealed class LevenbergMarquardtSolver
 
         return true;
     }
-
-    /// <summary>The residuals model - y of the last accepted point.</summary>
-    internal ReadOnlySpan<double> CurrentResiduals => _f;
 }

@@ -57,6 +57,7 @@ public sealed class NonlinearFitResult
     /// <summary>Parameter names, in the order of every per-parameter array.</summary>
     public ImmutableArray<string> ParameterNames => Model.ParameterNames;
 
+    /// <summary>Number of parameters.</summary>
     public int ParameterCount => Model.ParameterCount;
 
     /// <summary>Number of points.</summary>
@@ -93,6 +94,7 @@ public sealed class NonlinearFitResult
     /// </summary>
     public ImmutableArray<bool> AtBound { get; }
 
+    /// <summary>Sum of the squared residuals, in output units squared.</summary>
     public double ResidualSumOfSquares { get; }
 
     /// <summary>Sum of squares of the output about its mean.</summary>
@@ -122,6 +124,7 @@ public sealed class NonlinearFitResult
     /// <summary>Evaluations of the model at all points: the start and every trial step.</summary>
     public int Evaluations { get; }
 
+    /// <summary>How the fit ended; see <see cref="Converged"/>.</summary>
     public NonlinearFitStatus Status { get; }
 
     /// <summary>The status as text: converged-rss, converged-step, converged-gradient, max-iterations, non-finite, singular-jacobian.</summary>
