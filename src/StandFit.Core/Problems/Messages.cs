@@ -125,6 +125,43 @@ public static class Messages
     public static string NonFiniteFit() => "the fit produced a non-finite number; the data are out of range for this model. Check the data and the model.";
     public static string InternalError(string exceptionType) => F($"the tool failed on this unit ({exceptionType}); the operations log has the details. Please report it.");
 
+    // ---- model expressions (docs/expressions.md) ---------------------------------------------
+    public static string ExpressionEmpty() => "the expression is empty; write the model, for example R25*exp(beta*(1/x - 1/298.15)).";
+    public static string ExpressionTooLong(int length, int limit) => F($"the expression has {length} characters, over the limit of {limit}. Shorten it.");
+    public static string ExpressionTooDeep(int limit) => F($"the expression nests more than {limit} levels deep (parentheses, functions, signs and powers each add one). Simplify it.");
+    public static string ExpressionUnexpectedCharacter(string shown) => F($"{shown} is not part of the expression language; use numbers, names, + - * / ^ ** and parentheses.");
+    public static string ExpressionBadNumber(string shown) => F($"'{shown}' is not a number; a number has digits, an optional decimal point and an optional exponent (2, 0.5, 1.5E-3).");
+    public static string ExpressionNumberNotFinite(string shown) => F($"the number {shown} is too large for a double. Write it with a smaller exponent.");
+    public static string ExpressionExpectedOperand(string found) => F($"expected a number, a name, a function or '(' here, but found {found}.");
+    public static string ExpressionExpectedOperator(string found) => F($"expected an operator (+ - * / ^) before {found}; multiplication is never implied: write 2*x, not 2x.");
+    public static string ExpressionExpectedOperatorOrClose(string found, char close) => F($"expected an operator or '{close}' before {found}.");
+    public static string ExpressionUnclosed(char open, int column) => F($"the '{open}' at column {column} is never closed. Add the closing bracket.");
+    public static string ExpressionUnmatchedClose(char close) => F($"this '{close}' has no opening bracket before it. Remove it or add the opening one.");
+    public static string ExpressionMismatchedClose(char open, int openColumn, char close) => F($"'{close}' closes the '{open}' at column {openColumn}; brackets close with their own kind: ( ) or [ ].");
+    public static string ExpressionFunctionNeedsArgument(string name) => F($"'{name}' is a function: write its argument in parentheses, {name}(...).");
+    public static string ExpressionNotAFunction(string name, IEnumerable<string> functions) => F($"'{name}' is not a function, and a name followed by '(' must be one. The functions are: {string.Join(", ", functions)}. For a product write {name}*(...).");
+    public static string ExpressionUnknownName(string name, IEnumerable<string> parameters, IEnumerable<string> variables) => F($"'{name}' is neither a parameter ({string.Join(", ", parameters)}) nor a variable ({string.Join(", ", variables)}). Fix the name or add it to the parameters.");
+    public static string ExpressionTooManyParameters(int count, int limit) => F($"the expression has {count} parameters, over the limit of {limit}.");
+    public static string ExpressionTooManyVariables(int count, int limit) => F($"{count} variables are given, over the limit of {limit}.");
+    public static string ExpressionNoParameters() => "the expression names no parameter to fit; write the model with its parameters, for example b1*exp(-b2*x).";
+    public static string ExpressionUnusedParameter(string name) => F($"parameter '{name}' is listed but the expression does not use it; it could not be fitted. Remove it from the list or use it.");
+    public static string ExpressionBadName(string name, string role, bool reserved) => reserved
+        ? F($"'{name}' cannot be a {role} name: the expression language uses it (a function or pi). Choose another name.")
+        : F($"'{name}' is not a valid {role} name: use an ASCII letter or '_' followed by letters, digits or '_', at most 64 characters.");
+    public static string ExpressionDuplicateName(string name) => F($"'{name}' is given twice among the variables and parameters; each name must be one thing.");
+    public static string ExpressionConstantNotFinite() => "this constant part of the expression has no finite value (a division by zero, or a function outside its domain). Fix it.";
+    public static string ExpressionEndDescription() => "the end of the expression";
+    public static string ExpressionNumberDescription(string shown) => F($"the number {shown}");
+    public static string ExpressionNameDescription(string shown) => F($"the name '{shown}'");
+
+    // ---- nonlinear fits -----------------------------------------------------------------------
+    public static string NonlinearConvergedRss(int iterations, double tolerance) => F($"converged after {iterations} iterations: a step changed the residual sum of squares by less than {Numbers.Format(tolerance, 3)} relative (actual and predicted)");
+    public static string NonlinearConvergedStep(int iterations, double tolerance) => F($"converged after {iterations} iterations: the step bound fell below {Numbers.Format(tolerance, 3)} of the scaled size of the parameters");
+    public static string NonlinearConvergedGradient(int iterations, double tolerance) => F($"converged after {iterations} iterations: the residuals are orthogonal to every Jacobian column to within a cosine of {Numbers.Format(tolerance, 3)}");
+    public static string NonlinearMaxIterations(int limit) => F($"did not converge: stopped at the limit of {limit} iterations, and the estimates are not a solution. Check the start values and the model.");
+    public static string NonlinearNonFinite(int iterations) => F($"did not converge: the model or its derivatives were not finite (NaN or infinite) after {iterations} iterations, at the start values or at the point reached. Check the start values and the model's domain (ln, sqrt and powers of negative numbers, division by zero).");
+    public static string NonlinearSingularJacobian(int iterations, double condition) => F($"no solution with error bars: after {iterations} iterations the search stopped where the Jacobian is singular (condition number {Numbers.Format(condition, 3)}), so the data cannot separate the parameters. Check the model, its parameters and the sweep.");
+
     // ---- findings ----------------------------------------------------------------------------
     public static string LimitFinding(string figure, string unit, double low, double high, string relation, double? min, double? max)
     {

@@ -1,0 +1,141 @@
+using System.Collections.Immutable;
+using StandFit.Core.Fitting.Expressions;
+
+namespace StandFit.Core.Fitting.Nonlinear;
+
+/// <summary>
+/// The outcome of one Levenberg-Marquardt fit, computed once and immutable. A fit that did not
+/// converge says so in <see cref="Status"/> and <see cref="Converged"/>, and its estimates are the
+/// last accepted point of the search, not a solution. Estimates, covariance and residuals are in
+/// the units of the data as given (the stimulus columns and the response).
+/// </summary>
+public sealed class NonlinearFitResult
+{
+    internal NonlinearFitResult(
+        ModelExpression model,
+        ImmutableArray<double> start,
+        ImmutableArray<double> output,
+        ImmutableArray<double> estimates,
+        ImmutableArray<double> covariance,
+        ImmutableArray<double> fitted,
+        ImmutableArray<double> residuals,
+        ImmutableArray<bool> atBound,
+        double residualSumOfSquares,
+        double totalSumOfSquares,
+        double conditionNumber,
+        int iterations,
+        int evaluations,
+        NonlinearFitStatus status,
+        string statusReason)
+    {
+        Model = model;
+        Start = start;
+        Output = output;
+        Estimates = estimates;
+        Covariance = covariance;
+        Fitted = fitted;
+        Residuals = residuals;
+        AtBound = atBound;
+        ResidualSumOfSquares = residualSumOfSquares;
+        TotalSumOfSquares = totalSumOfSquares;
+        ConditionNumber = conditionNumber;
+        Iterations = iterations;
+        Evaluations = evaluations;
+        Status = status;
+        StatusReason = statusReason;
+        DegreesOfFreedom = output.Length - model.ParameterCount;
+        ResidualVariance = residualSumOfSquares / DegreesOfFreedom;
+        ResidualSd = Math.Sqrt(ResidualVariance);
+        RSquared = totalSumOfSquares > 0 ? 1.0 - (residualSumOfSquares / totalSumOfSquares) : double.NaN;
+        var p = model.ParameterCount;
+        StandardErrors = [.. Enumerable.Range(0, p).Select(j => Math.Sqrt(covariance[(j * p) + j]))];
+    }
+
+    /// <summary>The model that was fitted.</summary>
+    public ModelExpression Model { get; }
+
+    /// <summary>Parameter names, in the order of every per-parameter array.</summary>
+    public ImmutableArray<string> ParameterNames => Model.ParameterNames;
+
+    /// <summary>Number of parameters.</summary>
+    public int ParameterCount => Model.ParameterCount;
+
+    /// <summary>Number of points.</summary>
+    public int Count => Output.Length;
+
+    /// <summary>The start vector the search began from.</summary>
+    public ImmutableArray<double> Start { get; }
+
+    /// <summary>The response the model was fitted to, per point.</summary>
+    public ImmutableArray<double> Output { get; }
+
+    /// <summary>Parameter estimates (the last accepted point when the fit did not converge).</summary>
+    public ImmutableArray<double> Estimates { get; }
+
+    /// <summary>
+    /// Covariance of the estimates, p x p row-major: s^2 (J'J)^-1 with J the Jacobian at the
+    /// estimates, from the pivoted QR of J with unit-norm columns (through R^-1, never J'J itself).
+    /// NaN throughout when the Jacobian there is singular or not finite.
+    /// </summary>
+    public ImmutableArray<double> Covariance { get; }
+
+    /// <summary>Standard error of each estimate: the square root of the covariance diagonal.</summary>
+    public ImmutableArray<double> StandardErrors { get; }
+
+    /// <summary>The model's value at each point.</summary>
+    public ImmutableArray<double> Fitted { get; }
+
+    /// <summary>Output minus fitted value, per point.</summary>
+    public ImmutableArray<double> Residuals { get; }
+
+    /// <summary>
+    /// Per parameter: true when the estimate sits on one of its bounds. The covariance ignores the
+    /// bounds, so the standard error of such a parameter does not describe a constrained estimate.
+    /// </summary>
+    public ImmutableArray<bool> AtBound { get; }
+
+    /// <summary>Sum of the squared residuals, in output units squared.</summary>
+    public double ResidualSumOfSquares { get; }
+
+    /// <summary>Sum of squares of the output about its mean.</summary>
+    public double TotalSumOfSquares { get; }
+
+    /// <summary>Points minus parameters.</summary>
+    public int DegreesOfFreedom { get; }
+
+    /// <summary>RSS / df.</summary>
+    public double ResidualVariance { get; }
+
+    /// <summary>Residual standard deviation sqrt(RSS / df), in output units.</summary>
+    public double ResidualSd { get; }
+
+    /// <summary>The centred R^2: 1 - RSS / TSS about the mean (NaN when the output is constant).</summary>
+    public double RSquared { get; }
+
+    /// <summary>
+    /// 2-norm condition number of the Jacobian at the estimates after scaling its columns to unit
+    /// norm (infinite when singular): about 10^k means the estimates can lose k digits.
+    /// </summary>
+    public double ConditionNumber { get; }
+
+    /// <summary>Iterations of the search (one Jacobian evaluation each).</summary>
+    public int Iterations { get; }
+
+    /// <summary>Evaluations of the model at all points: the start and every trial step.</summary>
+    public int Evaluations { get; }
+
+    /// <summary>How the fit ended; see <see cref="Converged"/>.</summary>
+    public NonlinearFitStatus Status { get; }
+
+    /// <summary>The status as text: converged-rss, converged-step, converged-gradient, max-iterations, non-finite, singular-jacobian.</summary>
+    public string StatusCode => Status.Code();
+
+    /// <summary>A sentence saying how the fit ended and, when it did not converge, what to check.</summary>
+    public string StatusReason { get; }
+
+    /// <summary>True only for the converged statuses: then the estimates are a solution.</summary>
+    public bool Converged => Status.IsConverged();
+
+    /// <summary>Index of a parameter by name, or -1.</summary>
+    public int IndexOf(string parameter) => Model.IndexOf(parameter);
+}
