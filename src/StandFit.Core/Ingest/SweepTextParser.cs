@@ -6,7 +6,8 @@ namespace StandFit.Core.Ingest;
 /// <summary>
 /// Splits the text of a sweep file into a <see cref="SweepTable"/>: leading <c># key: value</c>
 /// metadata lines (a <c>#</c> line without a colon is a comment), one header row of column names,
-/// then comma-separated rows. Accepts LF and CRLF, skips blank lines (trailing ones included).
+/// then rows of cells separated by the format's separator (',' unless the recipe declares a decimal
+/// comma, then ';'). Accepts LF and CRLF, skips blank lines (trailing ones included).
 /// A byte-order mark must already be gone (the reader strips it).
 /// </summary>
 public static class SweepTextParser
@@ -14,8 +15,9 @@ public static class SweepTextParser
     /// <summary>The longest line accepted, in characters.</summary>
     public const int MaxLineLength = 16 * 1024;
 
-    public static Result<SweepTable> Parse(string sourceName, string text)
+    public static Result<SweepTable> Parse(string sourceName, string text, SweepFormat? format = null)
     {
+        format ??= SweepFormat.Standard;
         var metadata = ImmutableArray.CreateBuilder<MetadataEntry>();
         var rows = ImmutableArray.CreateBuilder<TableRow>();
         ImmutableArray<string> header = default;
@@ -64,7 +66,12 @@ public static class SweepTextParser
                     continue;
                 }
 
-                var names = SplitCells(line);
+                var names = SplitCells(line, format.CellSeparator);
+                if (names.Length == 1 && OtherSeparator(line, format.CellSeparator) is { } other)
+                {
+                    return Fail(ReasonCodes.InputWrongSeparator, Messages.WrongSeparator(format.CellSeparator, other), sourceName, lineNumber);
+                }
+
                 for (var i = 0; i < names.Length; i++)
                 {
                     if (names[i].Length == 0)
@@ -86,7 +93,7 @@ public static class SweepTextParser
                 continue;
             }
 
-            var cells = SplitCells(line);
+            var cells = SplitCells(line, format.CellSeparator);
             if (cells.Length != header.Length)
             {
                 return Fail(ReasonCodes.InputWrongColumnCount, Messages.WrongColumnCount(cells.Length, header.Length), sourceName, lineNumber);
@@ -180,11 +187,25 @@ public static class SweepTextParser
         return null;
     }
 
-    private static ImmutableArray<string> SplitCells(ReadOnlySpan<char> line)
+    /// <summary>A separator other than the expected one that a one-cell header holds: the file uses another export format.</summary>
+    private static char? OtherSeparator(ReadOnlySpan<char> header, char expected)
     {
-        var count = line.Count(',') + 1;
+        foreach (var candidate in (ReadOnlySpan<char>)[',', ';', '\t'])
+        {
+            if (candidate != expected && header.Contains(candidate))
+            {
+                return candidate;
+            }
+        }
+
+        return null;
+    }
+
+    private static ImmutableArray<string> SplitCells(ReadOnlySpan<char> line, char separator)
+    {
+        var count = line.Count(separator) + 1;
         var cells = ImmutableArray.CreateBuilder<string>(count);
-        foreach (var range in line.Split(','))
+        foreach (var range in line.Split(separator))
         {
             cells.Add(line[range].Trim().ToString());
         }

@@ -38,7 +38,8 @@ public sealed class Recipe
         ImmutableArray<FigureLimit> limits,
         RunsGate? runsGate,
         string contentHash,
-        string sourceFile)
+        string sourceFile,
+        SweepFormat? format = null)
     {
         ArgumentException.ThrowIfNullOrWhiteSpace(name);
         foreach (var limit in limits)
@@ -60,6 +61,7 @@ public sealed class Recipe
         RunsGate = runsGate;
         ContentHash = contentHash;
         SourceFile = sourceFile;
+        Format = format ?? SweepFormat.Standard;
     }
 
     public string Name { get; }
@@ -71,6 +73,9 @@ public sealed class Recipe
     public ImmutableArray<string> Parts { get; }
 
     public ColumnMap Columns { get; }
+
+    /// <summary>How the part's sweep files write cells and numbers (decimal point unless the recipe declares a comma).</summary>
+    public SweepFormat Format { get; }
 
     public ColumnUnits Units { get; }
 

@@ -52,7 +52,7 @@ public sealed class ParameterRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 1;
+    public const int CurrentSchemaVersion = 2;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -61,6 +61,10 @@ public sealed class SummaryRecord
     [JsonPropertyName("unit_key")]
     [ParquetRequired]
     public string UnitKey { get; set; } = "";
+
+    /// <summary>The <c>unit_key</c> of the latest earlier row of the same part and serial (a retest or a re-judgement), or null.</summary>
+    [JsonPropertyName("retest_of")]
+    public string? RetestOf { get; set; }
 
     [JsonPropertyName("serial")]
     public string? Serial { get; set; }

@@ -15,7 +15,8 @@ namespace StandFit.Edges.RecipeFiles;
 /// </summary>
 public static class RecipeBinder
 {
-    public static readonly ImmutableArray<string> TopKeys = ["recipe", "version", "parts", "columns", "units", "model", "confidence", "limits", "gates"];
+    public static readonly ImmutableArray<string> TopKeys = ["recipe", "version", "parts", "columns", "decimal_separator", "units", "model", "confidence", "limits", "gates"];
+    public static readonly ImmutableArray<string> DecimalSeparators = ["point", "comma"];
     public static readonly ImmutableArray<string> ColumnKeys = ["stimulus", "output", "leg", "order"];
     public static readonly ImmutableArray<string> UnitKeys = ["stimulus", "output"];
     public static readonly ImmutableArray<string> ModelKeys = ["type", "degree"];
@@ -45,6 +46,7 @@ public static class RecipeBinder
         var version = top.Text("version", required: true);
         var parts = top.TextList("parts", required: true);
         var columns = ReadColumns(top);
+        var format = ReadFormat(top);
         var units = ReadUnits(top);
         var model = ReadModel(top);
         var confidence = ReadConfidence(top);
@@ -67,7 +69,23 @@ public static class RecipeBinder
             limits,
             runsGate,
             contentHash,
-            file);
+            file,
+            format);
+    }
+
+    private static SweepFormat ReadFormat(MapReader top)
+    {
+        var text = top.Text("decimal_separator", required: false);
+        switch (text)
+        {
+            case null or "point":
+                return SweepFormat.Standard;
+            case "comma":
+                return SweepFormat.DecimalComma;
+            default:
+                top.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice("'decimal_separator'", text, DecimalSeparators, Suggestions.Closest(text, DecimalSeparators)), top.Node("decimal_separator"));
+                return SweepFormat.Standard;
+        }
     }
 
     private static ColumnMap? ReadColumns(MapReader top)
