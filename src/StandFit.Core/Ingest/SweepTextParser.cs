@@ -7,7 +7,8 @@ namespace StandFit.Core.Ingest;
 /// Splits the text of a sweep file into a <see cref="SweepTable"/>: leading <c># key: value</c>
 /// metadata lines (a <c>#</c> line without a colon is a comment), one header row of column names,
 /// then rows of cells separated by the format's separator (',' unless the recipe declares a decimal
-/// comma, then ';'). Accepts LF and CRLF, skips blank lines (trailing ones included).
+/// comma, then ';'). Accepts LF and CRLF, skips blank lines (trailing ones included). The last data
+/// row must end with a line end (a file cut off while being written is refused, not half-read).
 /// A byte-order mark must already be gone (the reader strips it).
 /// </summary>
 public static class SweepTextParser
@@ -25,6 +26,7 @@ public static class SweepTextParser
         var lineNumber = 0;
         var position = 0;
         var anyContent = false;
+        var lastRowEnded = true;
 
         while (position < text.Length)
         {
@@ -35,6 +37,7 @@ public static class SweepTextParser
             }
 
             var line = text.AsSpan(position, end - position);
+            var ended = end < text.Length;
             position = end + 1;
             lineNumber++;
             if (line.Length > 0 && line[^1] == '\r')
@@ -100,6 +103,7 @@ public static class SweepTextParser
             }
 
             rows.Add(new TableRow(lineNumber, cells));
+            lastRowEnded = ended;
         }
 
         if (!anyContent)
@@ -115,6 +119,12 @@ public static class SweepTextParser
         if (rows.Count == 0)
         {
             return Fail(ReasonCodes.InputNoRows, Messages.NoRows(), sourceName, headerLine);
+        }
+
+        if (!lastRowEnded)
+        {
+            // A cut in the middle of the last number would still read as a number: refuse a row without its line end.
+            return Fail(ReasonCodes.InputTruncated, Messages.TruncatedLastRow(), sourceName, rows[^1].Line);
         }
 
         return new SweepTable(sourceName, metadata.ToImmutable(), header, headerLine, rows.ToImmutable());

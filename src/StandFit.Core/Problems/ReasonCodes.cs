@@ -47,6 +47,7 @@ public static class ReasonCodes
     public static readonly ReasonCode InputBadNumber = new("input.bad_number", ReasonKind.Reject, "A cell that must hold a number does not.");
     public static readonly ReasonCode InputNonFinite = new("input.non_finite", ReasonKind.Reject, "A cell holds NaN or an infinity.");
     public static readonly ReasonCode InputBadLeg = new("input.bad_leg", ReasonKind.Reject, "A leg cell is neither 'up' nor 'down'.");
+    public static readonly ReasonCode InputTruncated = new("input.truncated", ReasonKind.Reject, "The last data row has no line end: the file was cut off (still being written, or the export stopped).");
     public static readonly ReasonCode InputWrongSeparator = new("input.wrong_separator", ReasonKind.Reject, "The header is not split by the cell separator the recipe expects (',' or, with a declared decimal comma, ';').");
     public static readonly ReasonCode InputDuplicate = new("input.duplicate", ReasonKind.Reject, "The same bytes were already judged under the same recipe: not judged again, no new summary row.");
     public static readonly ReasonCode InputNoRecipe = new("input.no_recipe", ReasonKind.Reject, "No recipe lists the unit's part.");
@@ -75,7 +76,7 @@ public static class ReasonCodes
     [
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
         InputDuplicateMetadata, InputBadSerial, InputNoHeader, InputDuplicateColumn, InputNoRows,
-        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputWrongSeparator,
+        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputTruncated, InputWrongSeparator,
         InputDuplicate, InputNoRecipe,
         FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitNonFinite,
         InternalError,

@@ -33,11 +33,17 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
 
     public DispositionMode Mode { get; } = mode;
 
-    public string Archive(InputFile input, string sha256, DateTime processedAtUtc) => Place(input, sha256, Folder(archive, processedAtUtc));
+    public string Archive(InputFile input, string sha256, DateTime processedAtUtc)
+    {
+        var (destination, present) = Destination(input, sha256, Folder(archive, processedAtUtc));
+        Transfer(input, destination, present);
+        return destination;
+    }
 
+    /// <summary>Writes the sidecar first, then moves the input: a crash between the two leaves the input claimed, and the next pass writes the same sidecar again.</summary>
     public string Reject(InputFile input, string sha256, DateTime processedAtUtc, RejectionNote note)
     {
-        var destination = Place(input, sha256, Folder(rejected, processedAtUtc));
+        var (destination, present) = Destination(input, sha256, Folder(rejected, processedAtUtc));
         var text = new StringBuilder()
             .Append("file: ").Append(SidecarValue(input.Name)).Append('\n')
             .Append("sha256: ").Append(sha256).Append('\n')
@@ -47,6 +53,7 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
             .Append("why: ").Append(SidecarValue(note.Why)).Append('\n')
             .ToString();
         File.WriteAllText(destination + ".rejected.txt", text, new UTF8Encoding(false));
+        Transfer(input, destination, present);
         return destination;
     }
 
@@ -95,27 +102,35 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
         return folder;
     }
 
-    private string Place(InputFile input, string sha256, string folder)
+    /// <summary>Where the input goes, and whether the same bytes are already there (a rerun, or a crash after a copy).</summary>
+    private static (string Destination, bool Present) Destination(InputFile input, string sha256, string folder)
     {
         var name = input.Name;
         var destination = Path.Combine(folder, name);
-        if (File.Exists(destination))
+        if (!File.Exists(destination))
         {
-            if (Hashing.Sha256OfFile(destination) == sha256)
-            {
-                // The same content is already there (a rerun, or a crash after the copy).
-                if (Mode == DispositionMode.Move)
-                {
-                    File.Delete(input.Path);
-                }
-
-                return destination;
-            }
-
-            destination = Path.Combine(folder, $"{Path.GetFileNameWithoutExtension(name)}~{sha256[..12]}{Path.GetExtension(name)}");
+            return (destination, false);
         }
 
-        if (Mode == DispositionMode.Move)
+        if (Hashing.Sha256OfFile(destination) == sha256)
+        {
+            return (destination, true);
+        }
+
+        return (Path.Combine(folder, $"{Path.GetFileNameWithoutExtension(name)}~{sha256[..12]}{Path.GetExtension(name)}"), false);
+    }
+
+    private void Transfer(InputFile input, string destination, bool present)
+    {
+        if (present)
+        {
+            // The same content is already there: in move mode the input's move is completed by removing it.
+            if (Mode == DispositionMode.Move)
+            {
+                File.Delete(input.Path);
+            }
+        }
+        else if (Mode == DispositionMode.Move)
         {
             File.Move(input.Path, destination, overwrite: true);
         }
@@ -123,7 +138,5 @@ public sealed class FileDisposer(string archive, string rejected, DispositionMod
         {
             File.Copy(input.Path, destination, overwrite: true);
         }
-
-        return destination;
     }
 }
