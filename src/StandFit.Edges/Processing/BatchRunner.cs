@@ -85,8 +85,7 @@ public sealed class BatchRunner(
             Start();
         }
 
-        var total = new BatchCounts();
-        FinishCommitted();
+        var total = FinishCommitted();
         Journal.Refresh();
         var leftovers = intake.Leftovers();
         for (var start = 0; start < leftovers.Count && !stop.IsCancellationRequested; start += batchSize)
@@ -106,9 +105,10 @@ public sealed class BatchRunner(
         return total;
     }
 
-    /// <summary>Finishes, from the journal alone, the batches committed before a crash, a stop or an output fault.</summary>
-    private void FinishCommitted()
+    /// <summary>Finishes, from the journal alone, the batches committed before a crash, a stop or an output fault; counts the inputs it moved on.</summary>
+    private BatchCounts FinishCommitted()
     {
+        var counts = new BatchCounts();
         var journal = Journal;
         var batches = 0;
         foreach (var batch in journal.Unlogged.ToList())
@@ -136,6 +136,14 @@ public sealed class BatchRunner(
                 {
                     Dispose(input, unit, at);
                     moved++;
+                    if (unit.Outcome == JournalOutcomes.Duplicate)
+                    {
+                        counts.AddDuplicate();
+                    }
+                    else
+                    {
+                        counts.Add(unit.Ruling switch { "pass" => Ruling.Pass, "fail" => Ruling.Fail, "retest" => Ruling.Retest, _ => Ruling.Rejected });
+                    }
                 }
 
                 journal.ClaimDone(claim);
@@ -146,6 +154,8 @@ public sealed class BatchRunner(
         {
             Log.Recovered(logger, batches, moved);
         }
+
+        return counts;
     }
 
     private async Task<BatchCounts> ProcessBatchAsync(IReadOnlyList<InputFile> batch, CancellationToken stop)
