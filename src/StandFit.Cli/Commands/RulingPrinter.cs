@@ -15,7 +15,7 @@ internal sealed class RulingPrinter(TextWriter output, bool quiet)
             return;
         }
 
-        var line = string.Create(CultureInfo.InvariantCulture, $"{r.Ruling.ToUpperInvariant(),-8} {PassFailLog.Escape(r.Serial),-20} {PassFailLog.Escape(r.Part),-8} {r.SourceFile}");
+        var line = string.Create(CultureInfo.InvariantCulture, $"{r.Ruling.ToUpperInvariant(),-8} {PassFailLog.Escape(r.Serial),-20} {PassFailLog.Escape(r.Part),-8} {PassFailLog.Escape(r.SourceFile)}");
         output.WriteLine(line);
         if (r.Ruling != "pass")
         {
@@ -34,12 +34,26 @@ internal sealed class RulingPrinter(TextWriter output, bool quiet)
         }
     }
 
+    /// <summary>A duplicate input: one line, no reasons (it was not judged again).</summary>
+    public void PrintDuplicate(SummaryRecord r)
+    {
+        if (!quiet)
+        {
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{"DUPLICATE",-8} {PassFailLog.Escape(r.Serial),-20} {PassFailLog.Escape(r.Part),-8} {PassFailLog.Escape(r.SourceFile)} (already judged: {r.UnitKey[..16]}...)"));
+        }
+    }
+
     public void PrintTotals(BatchCounts counts, TimeSpan elapsed, string outputFolder)
     {
         var rate = elapsed.TotalSeconds > 0 ? counts.Processed / elapsed.TotalSeconds : 0;
         output.WriteLine(string.Create(
             CultureInfo.InvariantCulture,
             $"{counts.Processed} units: {counts.Passed} pass, {counts.Failed} fail, {counts.Retest} retest, {counts.Rejected} rejected ({elapsed.TotalSeconds:F2} s, {rate:F0} units/s)"));
+        if (counts.Duplicates > 0)
+        {
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{counts.Duplicates} inputs were duplicates of units already judged: not judged again, no new row (see rejected/)."));
+        }
+
         if (counts.Skipped > 0)
         {
             output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{counts.Skipped} inputs could not be read and were left for a later run."));

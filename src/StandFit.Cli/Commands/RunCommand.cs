@@ -46,7 +46,18 @@ internal static class RunCommand
         var logger = loggers.CreateLogger("StandFit");
         var printer = new RulingPrinter(output, quiet);
         var mode = from is null ? DispositionMode.Move : DispositionMode.Copy;
-        var pipeline = Pipeline.Build(options, loggers, mode, TimeProvider.System, printer.Print);
+        Pipeline pipeline;
+        try
+        {
+            pipeline = Pipeline.Build(options, loggers, mode, TimeProvider.System, printer.Print, printer.PrintDuplicate);
+        }
+        catch (WorkerBusyException e)
+        {
+            error.WriteLine("standfit run: " + e.Message);
+            return ExitCodes.Configuration;
+        }
+
+        using var owned = pipeline;
         if (!pipeline.Catalog.IsValid)
         {
             Startup.Print(error, "recipe folder", pipeline.Catalog.Problems);
@@ -67,6 +78,7 @@ internal static class RunCommand
         var clock = Stopwatch.StartNew();
         try
         {
+            pipeline.Runner.Start();
             var counts = await pipeline.Runner.ProcessAsync(inputs, stop.Token).ConfigureAwait(false);
             Log.RunFinished(logger, counts.Processed, clock.Elapsed.TotalSeconds);
             printer.PrintTotals(counts, clock.Elapsed, options.Output);
@@ -78,8 +90,15 @@ internal static class RunCommand
             error.WriteLine("standfit run: " + e.Message);
             return ExitCodes.Fatal;
         }
+        catch (JournalCorruptException e)
+        {
+            Log.Fatal(logger, e);
+            error.WriteLine("standfit run: " + e.Message);
+            return ExitCodes.Fatal;
+        }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException)
         {
+            Log.SummaryWriteFailed(logger, e);
             error.WriteLine("standfit run: an output cannot be written (" + e.Message + "); unpublished inputs stay where they are.");
             return ExitCodes.OutputFault;
         }

@@ -3,7 +3,9 @@ using Microsoft.Extensions.Hosting;
 using Microsoft.Extensions.Logging;
 using Serilog;
 using Serilog.Events;
+using Serilog.Extensions.Logging;
 using StandFit.Edges.Folders;
+using StandFit.Edges.Logging;
 using StandFit.Edges.Processing;
 using StandFit.Edges.Worker;
 
@@ -12,6 +14,9 @@ namespace StandFit.Cli.Commands;
 /// <summary><c>standfit watch</c>: the long-lived worker under Microsoft.Extensions.Hosting.</summary>
 internal static class WatchCommand
 {
+    /// <summary>How long the host waits for the batch in hand after Ctrl-C or SIGTERM.</summary>
+    public static readonly TimeSpan ShutdownTimeout = TimeSpan.FromSeconds(30);
+
     public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
     {
         var (parsed, problem) = Arguments.Parse(args, ["--config"], ["--help"]);
@@ -42,20 +47,39 @@ internal static class WatchCommand
             return ExitCodes.Configuration;
         }
 
-        using var log = Edges.Logging.OperationsLog.Create(options.Logs, LogEventLevel.Information);
+        using var log = OperationsLog.Create(options.Logs, LogEventLevel.Information);
+        using var loggers = new SerilogLoggerFactory(log);
+        Pipeline pipeline;
+        try
+        {
+            pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System);
+        }
+        catch (WorkerBusyException e)
+        {
+            error.WriteLine("standfit watch: " + e.Message);
+            return ExitCodes.Configuration;
+        }
+
+        using var owned = pipeline;
+        var workerLogger = loggers.CreateLogger("StandFit.Worker");
+        var settings = new LoopSettings
+        {
+            Poll = TimeSpan.FromSeconds(options.PollSeconds),
+            Stable = TimeSpan.FromSeconds(options.StableSeconds),
+            StatusInterval = TimeSpan.FromSeconds(options.StatusSeconds),
+            FaultLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
+            StatusFile = options.StatusFile,
+        };
+        Edges.Logging.Log.WorkerIdentity(workerLogger, options.WorkerId, pipeline.Claims!.Folder, options.StableSeconds, options.StatusFile);
+        var loop = new InboxLoop(options.Inbox, pipeline.Runner, pipeline.Recipes, settings, TimeProvider.System, workerLogger);
+
         var builder = Host.CreateApplicationBuilder(new HostApplicationBuilderSettings { Args = [], ContentRootPath = AppContext.BaseDirectory });
         builder.Logging.ClearProviders();
         builder.Services.AddSerilog(log, dispose: false);
         builder.Services.AddSystemd();
         builder.Services.AddWindowsService(o => o.ServiceName = "StandFit");
-        builder.Services.Configure<HostOptions>(o => o.ShutdownTimeout = TimeSpan.FromSeconds(30));
-        builder.Services.AddSingleton(TimeProvider.System);
-        builder.Services.AddSingleton(sp =>
-        {
-            var loggers = sp.GetRequiredService<ILoggerFactory>();
-            var pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System);
-            return new InboxLoop(options.Inbox, pipeline.Runner, TimeSpan.FromSeconds(options.PollSeconds), TimeProvider.System, loggers.CreateLogger("StandFit.Worker"));
-        });
+        builder.Services.Configure<HostOptions>(o => o.ShutdownTimeout = ShutdownTimeout);
+        builder.Services.AddSingleton(loop);
         builder.Services.AddHostedService<WatchService>();
         using var host = builder.Build();
         Environment.ExitCode = ExitCodes.Ok;

@@ -18,7 +18,7 @@ public static class UnitEvaluator
 {
     public static UnitEvaluation Evaluate(SweepTable table, Recipe recipe, LinearModel? modelOverride = null)
     {
-        var assembled = SweepAssembler.Assemble(table, recipe.Columns);
+        var assembled = SweepAssembler.Assemble(table, recipe.Columns, recipe.Format);
         if (!assembled.IsSuccess)
         {
             var identity = SweepAssembler.ReadIdentity(table);

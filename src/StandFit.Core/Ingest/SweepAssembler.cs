@@ -7,7 +7,8 @@ namespace StandFit.Core.Ingest;
 
 /// <summary>
 /// Turns a <see cref="SweepTable"/> into a <see cref="Sweep"/> with the recipe's column map:
-/// numbers in invariant culture (decimal point, optional exponent, no thousands separator),
+/// numbers in invariant culture (the format's decimal separator, a point unless the recipe declares
+/// a comma; optional exponent; no thousands separator),
 /// legs 'up'/'down', points put in acquisition order.
 /// </summary>
 public static class SweepAssembler
@@ -24,8 +25,9 @@ public static class SweepAssembler
         "yyyy-MM-dd HH:mm:ssK", "yyyy-MM-dd HH:mm:ss.FFFFFFFK", "yyyy-MM-dd HH:mmK",
     ];
 
-    public static Result<Sweep> Assemble(SweepTable table, ColumnMap columns)
+    public static Result<Sweep> Assemble(SweepTable table, ColumnMap columns, SweepFormat? format = null)
     {
+        format ??= SweepFormat.Standard;
         var identity = ReadIdentity(table);
         if (!identity.IsSuccess)
         {
@@ -79,25 +81,25 @@ public static class SweepAssembler
             lines[i] = row.Line;
             for (var k = 0; k < inputIndex.Length; k++)
             {
-                if (Number(table, row, inputIndex[k], out inputs[k][i]) is { } p1)
+                if (Number(table, row, inputIndex[k], format, out inputs[k][i]) is { } p1)
                 {
                     return p1;
                 }
             }
 
-            if (Number(table, row, outputIndex, out output[i]) is { } p2)
+            if (Number(table, row, outputIndex, format, out output[i]) is { } p2)
             {
                 return p2;
             }
 
-            if (order is not null && Number(table, row, orderIndex, out order[i]) is { } p3)
+            if (order is not null && Number(table, row, orderIndex, format, out order[i]) is { } p3)
             {
                 return p3;
             }
 
             if (uncertainties is not null)
             {
-                if (Number(table, row, uncertaintyIndex, out uncertainties[i]) is { } p4)
+                if (Number(table, row, uncertaintyIndex, format, out uncertainties[i]) is { } p4)
                 {
                     return p4;
                 }
@@ -252,12 +254,12 @@ public static class SweepAssembler
         return -1;
     }
 
-    private static Problem? Number(SweepTable table, TableRow row, int column, out double value)
+    private static Problem? Number(SweepTable table, TableRow row, int column, SweepFormat format, out double value)
     {
         var cell = row.Cells[column];
-        if (!double.TryParse(cell, NumberStyle, CultureInfo.InvariantCulture, out value))
+        if (!double.TryParse(cell, NumberStyle, format.Numbers, out value))
         {
-            return Cell(table, row, column, ReasonCodes.InputBadNumber, Messages.BadNumber(table.Header[column], Shown(cell)));
+            return Cell(table, row, column, ReasonCodes.InputBadNumber, Messages.BadNumber(table.Header[column], Shown(cell), format.DecimalSeparator));
         }
 
         if (!double.IsFinite(value))

@@ -6,7 +6,9 @@ namespace StandFit.Core.Ingest;
 /// <summary>
 /// Splits the text of a sweep file into a <see cref="SweepTable"/>: leading <c># key: value</c>
 /// metadata lines (a <c>#</c> line without a colon is a comment), one header row of column names,
-/// then comma-separated rows. Accepts LF and CRLF, skips blank lines (trailing ones included).
+/// then rows of cells separated by the format's separator (',' unless the recipe declares a decimal
+/// comma, then ';'). Accepts LF and CRLF, skips blank lines (trailing ones included). The last data
+/// row must end with a line end (a file cut off while being written is refused, not half-read).
 /// A byte-order mark must already be gone (the reader strips it).
 /// </summary>
 public static class SweepTextParser
@@ -14,8 +16,9 @@ public static class SweepTextParser
     /// <summary>The longest line accepted, in characters.</summary>
     public const int MaxLineLength = 16 * 1024;
 
-    public static Result<SweepTable> Parse(string sourceName, string text)
+    public static Result<SweepTable> Parse(string sourceName, string text, SweepFormat? format = null)
     {
+        format ??= SweepFormat.Standard;
         var metadata = ImmutableArray.CreateBuilder<MetadataEntry>();
         var rows = ImmutableArray.CreateBuilder<TableRow>();
         ImmutableArray<string> header = default;
@@ -23,6 +26,7 @@ public static class SweepTextParser
         var lineNumber = 0;
         var position = 0;
         var anyContent = false;
+        var lastRowEnded = true;
 
         while (position < text.Length)
         {
@@ -33,6 +37,7 @@ public static class SweepTextParser
             }
 
             var line = text.AsSpan(position, end - position);
+            var ended = end < text.Length;
             position = end + 1;
             lineNumber++;
             if (line.Length > 0 && line[^1] == '\r')
@@ -64,7 +69,12 @@ public static class SweepTextParser
                     continue;
                 }
 
-                var names = SplitCells(line);
+                var names = SplitCells(line, format.CellSeparator);
+                if (names.Length == 1 && OtherSeparator(line, format.CellSeparator) is { } other)
+                {
+                    return Fail(ReasonCodes.InputWrongSeparator, Messages.WrongSeparator(format.CellSeparator, other), sourceName, lineNumber);
+                }
+
                 for (var i = 0; i < names.Length; i++)
                 {
                     if (names[i].Length == 0)
@@ -86,13 +96,14 @@ public static class SweepTextParser
                 continue;
             }
 
-            var cells = SplitCells(line);
+            var cells = SplitCells(line, format.CellSeparator);
             if (cells.Length != header.Length)
             {
                 return Fail(ReasonCodes.InputWrongColumnCount, Messages.WrongColumnCount(cells.Length, header.Length), sourceName, lineNumber);
             }
 
             rows.Add(new TableRow(lineNumber, cells));
+            lastRowEnded = ended;
         }
 
         if (!anyContent)
@@ -108,6 +119,12 @@ public static class SweepTextParser
         if (rows.Count == 0)
         {
             return Fail(ReasonCodes.InputNoRows, Messages.NoRows(), sourceName, headerLine);
+        }
+
+        if (!lastRowEnded)
+        {
+            // A cut in the middle of the last number would still read as a number: refuse a row without its line end.
+            return Fail(ReasonCodes.InputTruncated, Messages.TruncatedLastRow(), sourceName, rows[^1].Line);
         }
 
         return new SweepTable(sourceName, metadata.ToImmutable(), header, headerLine, rows.ToImmutable());
@@ -180,11 +197,25 @@ public static class SweepTextParser
         return null;
     }
 
-    private static ImmutableArray<string> SplitCells(ReadOnlySpan<char> line)
+    /// <summary>A separator other than the expected one that a one-cell header holds: the file uses another export format.</summary>
+    private static char? OtherSeparator(ReadOnlySpan<char> header, char expected)
     {
-        var count = line.Count(',') + 1;
+        foreach (var candidate in (ReadOnlySpan<char>)[',', ';', '\t'])
+        {
+            if (candidate != expected && header.Contains(candidate))
+            {
+                return candidate;
+            }
+        }
+
+        return null;
+    }
+
+    private static ImmutableArray<string> SplitCells(ReadOnlySpan<char> line, char separator)
+    {
+        var count = line.Count(separator) + 1;
         var cells = ImmutableArray.CreateBuilder<string>(count);
-        foreach (var range in line.Split(','))
+        foreach (var range in line.Split(separator))
         {
             cells.Add(line[range].Trim().ToString());
         }

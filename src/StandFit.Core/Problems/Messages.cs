@@ -10,6 +10,8 @@ public static class Messages
 {
     private static string F(FormattableString s) => s.ToString(CultureInfo.InvariantCulture);
 
+    private static string Separator(char c) => c == '\t' ? "tab" : c.ToString();
+
     // ---- sweep files -------------------------------------------------------------------------
     public static string EmptyFile() => "the file is empty; the stand wrote no data. Re-run the sweep or check the stand's export.";
     public static string BinaryFile(int offset) => F($"byte {offset} is not text (NUL or a control byte); the file is not a sweep export. Check that the stand writes plain text.");
@@ -28,7 +30,13 @@ public static class Messages
     public static string NoRows() => "the header is followed by no data rows; the sweep was not recorded. Re-run the sweep.";
     public static string WrongColumnCount(int cells, int expected) => F($"the row has {cells} cells but the header has {expected} columns (a truncated row?). Re-export the sweep.");
     public static string MissingColumn(string role, string name, IEnumerable<string> header) => F($"the recipe's {role} column '{name}' is not in the header ({string.Join(", ", header)}). Fix the recipe's 'columns' or the stand's export.");
-    public static string BadNumber(string column, string shown) => F($"'{shown}' in column '{column}' is not a number (numbers use a decimal point, no thousands separator). Fix the row or re-export.");
+    public static string BadNumber(string column, string shown, char decimalSeparator = '.') => decimalSeparator == ','
+        ? F($"'{shown}' in column '{column}' is not a number (this recipe declares a decimal comma: numbers use ',', no thousands separator). Fix the row or re-export.")
+        : F($"'{shown}' in column '{column}' is not a number (numbers use a decimal point, no thousands separator). Fix the row or re-export.");
+    public static string TruncatedLastRow() => "the last data row has no line end: the file was cut off while it was being written (or the export stopped), so its last number may be cut short. Re-export the sweep; stands should write under a temporary name and rename.";
+    public static string WrongSeparator(char expected, char found) => F($"the header has no '{Separator(expected)}' between column names but holds '{Separator(found)}': the file was exported in another format. Export with '{Separator(expected)}' between cells, or, for a decimal-comma export (';' between cells), declare 'decimal_separator: comma' in the part's recipe.");
+    public static string Duplicate(string firstAt, string firstFile, string ruling) => F($"the same bytes were judged at {firstAt} under the same recipe (file {firstFile} of the same batch, ruled {ruling}); the file was not judged again and adds no summary row. Remove the duplicate export, or change the recipe to judge it anew.");
+    public static string DuplicateOfPublished(string firstAt, string ruling, string unitKey) => F($"the same bytes were judged at {firstAt} under the same recipe (ruled {ruling}; its summary row has unit_key {unitKey}); the file was not judged again and adds no summary row. Remove the duplicate export, or change the recipe to judge it anew.");
     public static string NonFinite(string column, string shown) => F($"'{shown}' in column '{column}' is not a finite number. The stand recorded no valid reading here; re-run the sweep.");
     public static string BadLeg(string column, string shown) => F($"'{shown}' in leg column '{column}' must be 'up' or 'down'. Fix the row or the recipe's 'columns: leg'.");
     public static string NoRecipe(string key, string value) => F($"no recipe lists {key} '{value}'. Add the part to a recipe's 'parts' list; the unit was not judged.");
@@ -103,6 +111,7 @@ public static class Messages
     public static string EmptyList(string where) => F($"{where} is an empty list; name at least one.");
     public static string DuplicatePart(string part, string otherFile) => F($"part '{part}' is also listed by recipe file {otherFile}; a part must have exactly one recipe.");
     public static string UnreadableFile(string detail) => F($"the file cannot be read: {detail}.");
+    public static string BadWorkerId(string shown) => F($"'watch.worker_id' is '{shown}'; it names files, so it must be 1 to 64 characters of A-Z, a-z, 0-9, '.', '_' and '-', not starting with '.'.");
     public static string ConfigFolderMissing(string key, string path) => F($"folders.{key} is '{path}', which does not exist and cannot be created. Fix the path or create the folder.");
 
     // ---- data-quality gates -----------------------------------------------------------------

@@ -48,6 +48,9 @@ public static class ReasonCodes
     public static readonly ReasonCode InputNonFinite = new("input.non_finite", ReasonKind.Reject, "A cell holds NaN or an infinity.");
     public static readonly ReasonCode InputBadLeg = new("input.bad_leg", ReasonKind.Reject, "A leg cell is neither 'up' nor 'down'.");
     public static readonly ReasonCode InputBadUncertainty = new("input.bad_uncertainty", ReasonKind.Reject, "A reading's standard uncertainty (from the uncertainty column or the recipe's weights rule) is zero, negative or not finite.");
+    public static readonly ReasonCode InputTruncated = new("input.truncated", ReasonKind.Reject, "The last data row has no line end: the file was cut off (still being written, or the export stopped).");
+    public static readonly ReasonCode InputWrongSeparator = new("input.wrong_separator", ReasonKind.Reject, "The header is not split by the cell separator the recipe expects (',' or, with a declared decimal comma, ';').");
+    public static readonly ReasonCode InputDuplicate = new("input.duplicate", ReasonKind.Reject, "The same bytes were already judged under the same recipe: not judged again, no new summary row.");
     public static readonly ReasonCode InputNoRecipe = new("input.no_recipe", ReasonKind.Reject, "No recipe lists the unit's part.");
 
     // Data-quality gates, before any fit: the measurement is in doubt, so the unit is tested again.
@@ -85,7 +88,8 @@ public static class ReasonCodes
     [
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
         InputDuplicateMetadata, InputBadSerial, InputNoHeader, InputDuplicateColumn, InputNoRows,
-        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputBadUncertainty, InputNoRecipe,
+        InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputBadUncertainty, InputTruncated, InputWrongSeparator,
+        InputDuplicate, InputNoRecipe,
         SweepTooFewPoints, SweepSpanShort, SweepLegMissing, SweepLegNotMonotonic, SweepOutputSaturated, SweepDuplicateRows,
         FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitDomain, FitNonFinite,
         InternalError,

@@ -92,7 +92,8 @@ public sealed class Recipe
         RunsGate? runsGate,
         string contentHash,
         string sourceFile,
-        WeightRule? weights = null)
+        WeightRule? weights = null,
+        SweepFormat? format = null)
     {
         ArgumentException.ThrowIfNullOrWhiteSpace(name);
         if (columns.Inputs.Length != model.InputCount)
@@ -117,6 +118,7 @@ public sealed class Recipe
         ContentHash = contentHash;
         SourceFile = sourceFile;
         Weights = weights;
+        Format = format ?? SweepFormat.Standard;
     }
 
     public string Name { get; }
@@ -128,6 +130,9 @@ public sealed class Recipe
     public ImmutableArray<string> Parts { get; }
 
     public ColumnMap Columns { get; }
+
+    /// <summary>How the part's sweep files write cells and numbers (decimal point unless the recipe declares a comma).</summary>
+    public SweepFormat Format { get; }
 
     public ColumnUnits Units { get; }
 

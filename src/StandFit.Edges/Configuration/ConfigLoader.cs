@@ -1,5 +1,7 @@
 using System.Collections.Immutable;
+using StandFit.Core.Ingest;
 using StandFit.Core.Problems;
+using StandFit.Edges.Folders;
 using StandFit.Edges.Readers;
 using StandFit.Edges.RecipeFiles;
 
@@ -11,7 +13,7 @@ public static class ConfigLoader
     public static readonly ImmutableArray<string> TopKeys = ["folders", "reader", "watch", "output"];
     public static readonly ImmutableArray<string> FolderKeys = ["inbox", "archive", "rejected", "output", "recipes", "logs"];
     public static readonly ImmutableArray<string> ReaderKeys = ["max_file_bytes"];
-    public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds"];
+    public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds", "stable_seconds", "worker_id", "status_seconds", "fault_log_seconds"];
     public static readonly ImmutableArray<string> OutputKeys = ["flush_units"];
 
     public static Result<StandFitOptions> Load(string path)
@@ -67,11 +69,26 @@ public static class ConfigLoader
         var maxBytes = reader?.Integer("max_file_bytes", required: false);
         var watch = top.Map("watch", WatchKeys, required: false);
         var poll = watch?.Number("poll_seconds", required: false);
+        var stable = watch?.Number("stable_seconds", required: false);
+        var workerId = watch?.Text("worker_id", required: false);
+        var status = watch?.Number("status_seconds", required: false);
+        var faultLog = watch?.Number("fault_log_seconds", required: false);
         var outputSection = top.Map("output", OutputKeys, required: false);
         var flushUnits = outputSection?.Integer("flush_units", required: false);
 
         Positive(reader, "max_file_bytes", maxBytes);
         Positive(watch, "poll_seconds", poll);
+        Positive(watch, "status_seconds", status);
+        Positive(watch, "fault_log_seconds", faultLog);
+        if (watch is not null && stable is { } s && s < 0)
+        {
+            watch.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(watch.Path("stable_seconds"), Numbers.Format(s), "zero or more"), watch.Node("stable_seconds"));
+        }
+
+        if (watch is not null && workerId is not null && !WorkerIdentity.IsValid(workerId))
+        {
+            watch.Sink.Add(RecipeCodes.BadValue, Messages.BadWorkerId(SweepAssembler.Shown(workerId)), watch.Node("worker_id"));
+        }
         Positive(outputSection, "flush_units", flushUnits);
 
         if (sink.HasProblems)
@@ -91,6 +108,11 @@ public static class ConfigLoader
             Logs = logs!,
             MaxFileBytes = maxBytes ?? defaults.MaxFileBytes,
             PollSeconds = poll ?? defaults.PollSeconds,
+            StableSeconds = stable ?? defaults.StableSeconds,
+            WorkerId = workerId ?? WorkerIdentity.Default(),
+            WorkerIdConfigured = workerId is not null,
+            StatusSeconds = status ?? defaults.StatusSeconds,
+            FaultLogSeconds = faultLog ?? defaults.FaultLogSeconds,
             FlushUnits = flushUnits ?? defaults.FlushUnits,
         };
     }

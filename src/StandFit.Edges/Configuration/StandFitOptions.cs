@@ -28,6 +28,24 @@ public sealed record StandFitOptions
     /// <summary>How often <c>watch</c> rescans the inbox even without a watcher event (seconds; default 2).</summary>
     public double PollSeconds { get; init; } = 2;
 
+    /// <summary>How long an inbox file's size and modification time must stay the same before it is taken (seconds; default 2; 0 takes ready files at once).</summary>
+    public double StableSeconds { get; init; } = 2;
+
+    /// <summary>The worker's identity (claim folder, journal, Parquet names, status file); default the host name.</summary>
+    public string WorkerId { get; init; } = "worker";
+
+    /// <summary>True when <c>watch.worker_id</c> is set: the status file is then named after it.</summary>
+    public bool WorkerIdConfigured { get; init; }
+
+    /// <summary>How often <c>watch</c> rewrites its status file (seconds; default 5).</summary>
+    public double StatusSeconds { get; init; } = 5;
+
+    /// <summary>How often a fault that goes on is logged again (seconds; default 300).</summary>
+    public double FaultLogSeconds { get; init; } = 300;
+
+    /// <summary>The status file: <c>output/status.json</c>, or <c>output/status-WORKER.json</c> when the worker id is configured.</summary>
+    public string StatusFile => Path.Combine(Output, WorkerIdConfigured ? $"status-{WorkerId}.json" : "status.json");
+
     /// <summary>Units per Parquet file and per pass/fail log flush in a one-shot run (default 5000).</summary>
     public int FlushUnits { get; init; } = 5000;
 }

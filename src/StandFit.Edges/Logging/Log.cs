@@ -21,6 +21,9 @@ public static partial class Log
     [LoggerMessage(EventId = 1004, Level = LogLevel.Warning, Message = "Input {SourceFile} vanished or cannot be read before processing: {Why}; skipped")]
     public static partial void InputUnreadable(ILogger logger, string sourceFile, string why);
 
+    [LoggerMessage(EventId = 1005, Level = LogLevel.Warning, Message = "Unit from {SourceFile} is a duplicate of {UnitKey} (first published {FirstAt}, {FirstRuling}); not judged again, no new summary row")]
+    public static partial void UnitDuplicate(ILogger logger, string sourceFile, string unitKey, string firstAt, string firstRuling);
+
     [LoggerMessage(EventId = 2001, Level = LogLevel.Information, Message = "Batch of {Count} units published: {Passed} pass, {Failed} fail, {Retest} retest, {Rejected} rejected")]
     public static partial void BatchPublished(ILogger logger, int count, int passed, int failed, int retest, int rejected);
 
@@ -33,11 +36,26 @@ public static partial class Log
     [LoggerMessage(EventId = 2004, Level = LogLevel.Information, Message = "Run finished: {Count} units in {Seconds:F2} s")]
     public static partial void RunFinished(ILogger logger, int count, double seconds);
 
+    [LoggerMessage(EventId = 2005, Level = LogLevel.Information, Message = "Recovered committed work: {Batches} batches' pass/fail lines written again, {Inputs} published inputs moved on without a new row")]
+    public static partial void Recovered(ILogger logger, int batches, int inputs);
+
+    [LoggerMessage(EventId = 2006, Level = LogLevel.Information, Message = "Journal read: {Keys} unit keys published, {Pending} claimed inputs to finish, {Orphans} temporary files of an uncommitted batch removed")]
+    public static partial void JournalOpened(ILogger logger, int keys, int pending, int orphans);
+
+    [LoggerMessage(EventId = 2007, Level = LogLevel.Error, Message = "Summary file {File} of committed batch {Batch} is missing (neither its temporary nor its final name exists); its rows are lost. Restore the file from a backup")]
+    public static partial void CommittedFileMissing(ILogger logger, string file, string batch);
+
     [LoggerMessage(EventId = 3001, Level = LogLevel.Information, Message = "Recipes loaded: {Count} in force from {Folder}")]
     public static partial void RecipesLoaded(ILogger logger, int count, string folder);
 
     [LoggerMessage(EventId = 3002, Level = LogLevel.Error, Message = "Recipe problem: {Problem}")]
     public static partial void RecipeProblem(ILogger logger, string problem);
+
+    [LoggerMessage(EventId = 3003, Level = LogLevel.Information, Message = "Recipes reloaded: {Count} in force from {Folder}")]
+    public static partial void RecipesReloaded(ILogger logger, int count, string folder);
+
+    [LoggerMessage(EventId = 3004, Level = LogLevel.Warning, Message = "The recipe folder changed but cannot be taken into force ({Problems} problems); the last good recipes stay in force")]
+    public static partial void RecipesKept(ILogger logger, int problems);
 
     [LoggerMessage(EventId = 4001, Level = LogLevel.Information, Message = "Worker watching {Inbox} (rescan every {PollSeconds} s)")]
     public static partial void WorkerStarted(ILogger logger, string inbox, double pollSeconds);
@@ -48,9 +66,21 @@ public static partial class Log
     [LoggerMessage(EventId = 4003, Level = LogLevel.Warning, Message = "Folder watcher failed; recreating it (rescans go on)")]
     public static partial void WatcherFailed(ILogger logger, Exception exception);
 
+    [LoggerMessage(EventId = 4004, Level = LogLevel.Information, Message = "Worker {WorkerId} claims into {ClaimFolder}; inputs must be stable for {StableSeconds} s; status in {StatusFile}")]
+    public static partial void WorkerIdentity(ILogger logger, string workerId, string claimFolder, double stableSeconds, string statusFile);
+
+    [LoggerMessage(EventId = 4005, Level = LogLevel.Warning, Message = "The status file {StatusFile} cannot be written: {Why}")]
+    public static partial void StatusUnwritable(ILogger logger, string statusFile, string why);
+
     [LoggerMessage(EventId = 9001, Level = LogLevel.Critical, Message = "The pass/fail log cannot be written; the worker stops")]
     public static partial void AuditSinkFailed(ILogger logger, Exception exception);
 
     [LoggerMessage(EventId = 9002, Level = LogLevel.Critical, Message = "Fatal error; the worker stops")]
     public static partial void Fatal(ILogger logger, Exception exception);
+
+    [LoggerMessage(EventId = 9003, Level = LogLevel.Error, Message = "{Stage} cannot be used: {Why}. Inputs stay where they are (or claimed, not archived); retrying with backoff. Attempt {Attempts}; this is logged again in {IntervalSeconds} s if it goes on")]
+    public static partial void Fault(ILogger logger, string stage, string why, int attempts, double intervalSeconds);
+
+    [LoggerMessage(EventId = 9004, Level = LogLevel.Information, Message = "{Stage} works again after {Seconds:F0} s and {Attempts} attempts; held inputs resume")]
+    public static partial void FaultCleared(ILogger logger, string stage, double seconds, int attempts);
 }

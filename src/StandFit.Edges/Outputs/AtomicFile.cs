@@ -29,6 +29,22 @@ public static class AtomicFile
         }
     }
 
+    /// <summary>Replaces a small text file atomically (temporary name in the same folder, then a rename over the old one).</summary>
+    public static void Replace(string path, string text)
+    {
+        var temporary = Path.Combine(Path.GetDirectoryName(path)!, "." + Path.GetFileName(path) + ".tmp");
+        try
+        {
+            File.WriteAllText(temporary, text, new System.Text.UTF8Encoding(false));
+            File.Move(temporary, path, overwrite: true);
+        }
+        catch
+        {
+            TryDelete(temporary);
+            throw;
+        }
+    }
+
     private static void TryDelete(string path)
     {
         try

@@ -7,7 +7,11 @@ namespace StandFit.Edges.Outputs;
 /// <summary>
 /// Writes summary rows to <c>output/summaries/date=YYYY-MM-DD/</c>, one Parquet file per batch and
 /// partition (the date is the unit's test start, or its processing time when the file gives none),
-/// Zstd-compressed, published atomically (<see cref="AtomicFile"/>).
+/// Zstd-compressed. Publishing is two-phase so that a journal entry can sit between the phases:
+/// <see cref="PrepareAsync"/> writes each file under a hidden temporary name in its destination
+/// folder and flushes it to disk; <see cref="PreparedSummaries.Complete"/> renames them to their
+/// final names (atomic within one volume). A reader globbing <c>*.parquet</c> never sees a
+/// half-written file, and a file is never overwritten.
 /// </summary>
 public sealed class ParquetSummaryWriter : ISummarySink
 {
@@ -17,33 +21,160 @@ public sealed class ParquetSummaryWriter : ISummarySink
         CompressionLevel = System.IO.Compression.CompressionLevel.Optimal,
     };
 
+    private readonly string _output;
     private readonly string _root;
     private readonly string _filePrefix;
+    private readonly string _temporaryPrefix;
     private int _sequence;
 
     /// <param name="outputFolder">The configured output folder.</param>
     /// <param name="filePrefix">Unique per writer instance (run id), so two runs never collide.</param>
-    public ParquetSummaryWriter(string outputFolder, string filePrefix)
+    /// <param name="workerId">Marks this worker's temporary files, so that only its own leftovers are cleaned.</param>
+    public ParquetSummaryWriter(string outputFolder, string filePrefix, string workerId = "worker")
     {
+        _output = outputFolder;
         _root = Path.Combine(outputFolder, "summaries");
         _filePrefix = filePrefix;
+        _temporaryPrefix = "." + workerId + "~";
     }
 
     public static string PartitionOf(SummaryRecord record) =>
         "date=" + (record.TestStart ?? record.ProcessedAt).ToString("yyyy-MM-dd", CultureInfo.InvariantCulture);
 
+    /// <summary>The hidden temporary name a final file is first written under.</summary>
+    public string TemporaryOf(string finalPath) => Path.Combine(Path.GetDirectoryName(finalPath)!, _temporaryPrefix + Path.GetFileName(finalPath) + ".tmp");
+
+    /// <summary>A path relative to the output folder, with '/' (as the journal stores it).</summary>
+    public string Relative(string path) => Path.GetRelativePath(_output, path).Replace('\\', '/');
+
+    /// <summary>The absolute path of a path relative to the output folder.</summary>
+    public string Absolute(string relative) => Path.GetFullPath(Path.Combine(_output, relative));
+
+    public async Task<PreparedSummaries> PrepareAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken)
+    {
+        if (!Directory.Exists(_output))
+        {
+            throw new DirectoryNotFoundException($"The output folder {_output} does not exist (removed, or a share not mounted); inputs are held until it is back.");
+        }
+
+        var prepared = new PreparedSummaries(this);
+        try
+        {
+            foreach (var group in records.GroupBy(PartitionOf).OrderBy(g => g.Key, StringComparer.Ordinal))
+            {
+                var sequence = Interlocked.Increment(ref _sequence);
+                var name = string.Create(CultureInfo.InvariantCulture, $"{_filePrefix}-{sequence:D5}.parquet");
+                var folder = Path.Combine(_root, group.Key);
+                Directory.CreateDirectory(folder);
+                var final = Path.Combine(folder, name);
+                var temporary = TemporaryOf(final);
+                prepared.Add(temporary, final);
+                var rows = group.ToList();
+                await using var stream = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write, FileShare.None, 64 * 1024, FileOptions.Asynchronous);
+                await ParquetSerializer.SerializeAsync(rows, stream, Options, cancellationToken: cancellationToken).ConfigureAwait(false);
+                await stream.FlushAsync(cancellationToken).ConfigureAwait(false);
+                stream.Flush(flushToDisk: true);
+            }
+        }
+        catch
+        {
+            prepared.Abandon();
+            throw;
+        }
+
+        return prepared;
+    }
+
     public async Task WriteAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken)
     {
-        foreach (var group in records.GroupBy(PartitionOf).OrderBy(g => g.Key, StringComparer.Ordinal))
+        var prepared = await PrepareAsync(records, cancellationToken).ConfigureAwait(false);
+        prepared.Complete();
+    }
+
+    /// <summary>
+    /// Renames a prepared file to its final name if that has not happened yet (recovery of a batch
+    /// the journal holds). False when neither the temporary nor the final file exists.
+    /// </summary>
+    public bool RollForward(string relativeFinal)
+    {
+        var final = Absolute(relativeFinal);
+        if (File.Exists(final))
         {
-            var sequence = Interlocked.Increment(ref _sequence);
-            var name = string.Create(CultureInfo.InvariantCulture, $"{_filePrefix}-{sequence:D5}.parquet");
-            var path = Path.Combine(_root, group.Key, name);
-            var rows = group.ToList();
-            await AtomicFile.PublishAsync(
-                path,
-                stream => ParquetSerializer.SerializeAsync(rows, stream, Options, cancellationToken: cancellationToken),
-                cancellationToken).ConfigureAwait(false);
+            return true;
+        }
+
+        var temporary = TemporaryOf(final);
+        if (!File.Exists(temporary))
+        {
+            return false;
+        }
+
+        File.Move(temporary, final, overwrite: false);
+        return true;
+    }
+
+    /// <summary>Deletes this worker's temporary files that no journal entry needs (a crash before the entry was written).</summary>
+    public int DeleteOrphans(IReadOnlySet<string> keepRelativeFinals)
+    {
+        if (!Directory.Exists(_root))
+        {
+            return 0;
+        }
+
+        var deleted = 0;
+        foreach (var temporary in Directory.EnumerateFiles(_root, _temporaryPrefix + "*.tmp", SearchOption.AllDirectories))
+        {
+            var name = Path.GetFileName(temporary);
+            var final = Path.Combine(Path.GetDirectoryName(temporary)!, name[_temporaryPrefix.Length..^".tmp".Length]);
+            if (!keepRelativeFinals.Contains(Relative(final)))
+            {
+                File.Delete(temporary);
+                deleted++;
+            }
+        }
+
+        return deleted;
+    }
+}
+
+/// <summary>Summary files written and flushed under temporary names, waiting to be renamed.</summary>
+public sealed class PreparedSummaries
+{
+    private readonly ParquetSummaryWriter _writer;
+    private readonly List<(string Temporary, string Final)> _files = [];
+
+    internal PreparedSummaries(ParquetSummaryWriter writer) => _writer = writer;
+
+    /// <summary>The final paths, relative to the output folder.</summary>
+    public IReadOnlyList<string> RelativeFinals => [.. _files.Select(f => _writer.Relative(f.Final))];
+
+    internal void Add(string temporary, string final) => _files.Add((temporary, final));
+
+    /// <summary>Renames every file to its final name (already renamed ones are left as they are).</summary>
+    public void Complete()
+    {
+        foreach (var (temporary, final) in _files)
+        {
+            if (!File.Exists(final))
+            {
+                File.Move(temporary, final, overwrite: false);
+            }
+        }
+    }
+
+    /// <summary>Removes the temporary files (the batch was not committed).</summary>
+    public void Abandon()
+    {
+        foreach (var (temporary, _) in _files)
+        {
+            try
+            {
+                File.Delete(temporary);
+            }
+            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+            {
+                // The name is hidden and never read; the next start deletes it.
+            }
         }
     }
 }

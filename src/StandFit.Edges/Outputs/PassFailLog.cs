@@ -16,22 +16,29 @@ public sealed class PassFailLog : IAuditSink
 
     public PassFailLog(string outputFolder) => _folder = Path.Combine(outputFolder, "passfail");
 
-    public void Append(IReadOnlyList<SummaryRecord> records)
+    public void Append(IReadOnlyList<SummaryRecord> records) => AppendLines([.. records.Select(r => FormatLine(r))]);
+
+    public void AppendLines(IReadOnlyList<string> lines)
     {
-        if (records.Count == 0)
+        if (lines.Count == 0)
         {
             return;
         }
 
         try
         {
+            if (!Directory.Exists(Path.GetDirectoryName(_folder)))
+            {
+                throw new DirectoryNotFoundException($"The output folder {Path.GetDirectoryName(_folder)} does not exist.");
+            }
+
             Directory.CreateDirectory(_folder);
-            foreach (var day in records.GroupBy(r => r.ProcessedAt.ToString("yyyy-MM-dd", CultureInfo.InvariantCulture)))
+            foreach (var day in lines.GroupBy(l => l[..10], StringComparer.Ordinal))
             {
                 var text = new StringBuilder();
-                foreach (var record in day)
+                foreach (var line in day)
                 {
-                    text.Append(FormatLine(record)).Append('\n');
+                    text.Append(line).Append('\n');
                 }
 
                 var path = Path.Combine(_folder, $"passfail-{day.Key}.log");
@@ -47,17 +54,18 @@ public sealed class PassFailLog : IAuditSink
         }
     }
 
-    public static string FormatLine(SummaryRecord r)
+    /// <summary>The line of a unit; <paramref name="ruling"/> and <paramref name="reasons"/> replace the row's (a duplicate's line).</summary>
+    public static string FormatLine(SummaryRecord r, string? ruling = null, IReadOnlyList<string>? reasons = null)
     {
         var line = new StringBuilder(256);
         line.Append(r.ProcessedAt.ToString("yyyy-MM-dd'T'HH:mm:ss.fff'Z'", CultureInfo.InvariantCulture));
-        line.Append(' ').Append(r.Ruling.ToUpperInvariant().PadRight(8));
+        line.Append(' ').Append((ruling ?? r.Ruling).ToUpperInvariant().PadRight(8));
         Field(line, "serial", r.Serial);
         Field(line, "part", r.Part);
         Field(line, "station", r.Station);
         Field(line, "file", r.SourceFile);
         Field(line, "recipe", r.RecipeName is null ? null : $"{r.RecipeName}@{r.RecipeVersion}");
-        Field(line, "reasons", string.Join(',', r.ReasonCodes));
+        Field(line, "reasons", string.Join(',', reasons ?? r.ReasonCodes));
         Field(line, "key", r.UnitKey);
         return line.ToString();
     }

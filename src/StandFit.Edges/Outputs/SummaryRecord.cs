@@ -110,7 +110,7 @@ public sealed class DerivedRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 3;
+    public const int CurrentSchemaVersion = 4;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -119,6 +119,10 @@ public sealed class SummaryRecord
     [JsonPropertyName("unit_key")]
     [ParquetRequired]
     public string UnitKey { get; set; } = "";
+
+    /// <summary>The <c>unit_key</c> of the latest earlier row of the same part and serial (a retest or a re-judgement), or null.</summary>
+    [JsonPropertyName("retest_of")]
+    public string? RetestOf { get; set; }
 
     [JsonPropertyName("serial")]
     public string? Serial { get; set; }

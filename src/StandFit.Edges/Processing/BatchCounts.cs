@@ -30,7 +30,12 @@ public sealed class BatchCounts
         }
     }
 
+    /// <summary>Inputs whose unit key was already published: recorded as duplicates, not judged again.</summary>
+    public int Duplicates { get; private set; }
+
     public void AddSkipped() => Skipped++;
+
+    public void AddDuplicate() => Duplicates++;
 
     public void Add(BatchCounts other)
     {
@@ -40,5 +45,6 @@ public sealed class BatchCounts
         Retest += other.Retest;
         Rejected += other.Rejected;
         Skipped += other.Skipped;
+        Duplicates += other.Duplicates;
     }
 }

@@ -1,5 +1,7 @@
+using System.Globalization;
 using Microsoft.Extensions.Logging;
 using StandFit.Core.Judging;
+using StandFit.Core.Problems;
 using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
 using StandFit.Edges.Outputs;
@@ -7,46 +9,162 @@ using StandFit.Edges.Outputs;
 namespace StandFit.Edges.Processing;
 
 /// <summary>
-/// Processes a list of inputs in batches: judge every unit of a batch (in parallel; the core is
-/// pure), publish the batch's summary rows, append their pass/fail lines, then move or copy each
-/// input to archive/ or rejected/. That order means a crash can repeat a batch but never lose one.
-/// Failure policy per stage: reading or judging a unit never stops the batch; a summary write
-/// failure throws before any input is moved (inputs stay; try again later); a pass/fail log
-/// failure throws <see cref="AuditSinkException"/> (fatal).
+/// Processes inputs in batches, exactly once. For each batch: take the inputs (claim them out of the
+/// inbox, or read them in place); judge every unit (in parallel; the core is pure); sort out
+/// duplicates (a unit key already published: not judged again, no row) and link retests (the
+/// latest earlier key of the same part and serial); write the batch's Parquet files under temporary
+/// names (flushed); commit the batch to the journal (flushed); rename the Parquet files; append the
+/// pass/fail lines (flushed) and mark them logged in the journal; only then move each input on.
+/// At the start of every pass, work the journal holds as committed but unfinished (after a crash,
+/// a stop or an output fault) is finished first, from the journal alone: files renamed, lines
+/// written again, inputs moved on, with no new row. So a crash at any instant repeats no row and
+/// loses no input. Failure policy per stage: reading or judging a unit never stops the batch; an
+/// output failure throws before any input of the uncommitted batch is moved (inputs stay claimed;
+/// try again later); the pass/fail log failing throws <see cref="AuditSinkException"/>.
 /// </summary>
 public sealed class BatchRunner(
     UnitProcessor processor,
-    ISummarySink summaries,
+    ParquetSummaryWriter summaries,
     IAuditSink audit,
     FileDisposer disposer,
+    IInputIntake intake,
+    string outputFolder,
+    string workerId,
+    string runId,
     TimeProvider clock,
     string toolVersion,
     int batchSize,
     ILogger logger)
 {
+    private readonly Dictionary<string, long> _unreadableLogged = new(StringComparer.Ordinal);
+    private PublishJournal? _journal;
+    private int _batchSequence;
+
     /// <summary>Called once per published unit, in input order (the command line prints these).</summary>
     public Action<SummaryRecord>? OnPublished { get; init; }
 
-    /// <summary>Processes every input; stops between units when <paramref name="stop"/> is cancelled.</summary>
-    public async Task<BatchCounts> ProcessAsync(IReadOnlyList<string> inputs, CancellationToken stop)
+    /// <summary>Called once per duplicate input, with the line written for it.</summary>
+    public Action<SummaryRecord>? OnDuplicate { get; init; }
+
+    /// <summary>How often the same unreadable input is logged again.</summary>
+    public TimeSpan RepeatLogInterval { get; init; } = TimeSpan.FromMinutes(5);
+
+    public IInputIntake Intake => intake;
+
+    public string WorkerId => workerId;
+
+    public PublishJournal Journal => _journal ?? throw new InvalidOperationException("Start the runner first.");
+
+    /// <summary>Reads the journal and removes this worker's temporary files that no commit needs. Throws <see cref="JournalCorruptException"/>.</summary>
+    public void Start()
     {
-        var total = new BatchCounts();
-        for (var start = 0; start < inputs.Count && !stop.IsCancellationRequested; start += batchSize)
+        var live = intake.Leftovers().Select(i => i.Claim).OfType<string>().ToHashSet(StringComparer.Ordinal);
+        _journal = PublishJournal.Open(outputFolder, workerId, live);
+        var keep = _journal.Unlogged.SelectMany(b => b.Files).ToHashSet(StringComparer.Ordinal);
+        var orphans = 0;
+        try
         {
-            var batch = inputs.Skip(start).Take(batchSize).ToArray();
-            total.Add(await ProcessBatchAsync(batch, stop).ConfigureAwait(false));
+            orphans = summaries.DeleteOrphans(keep);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            // Left for the next start; hidden temporary names are never read.
+        }
+
+        Log.JournalOpened(logger, _journal.PublishedCount, _journal.CommittedClaims.Count, orphans);
+    }
+
+    /// <summary>Inputs in hand that are not moved on yet (claimed and waiting).</summary>
+    public int Held() => intake.Leftovers().Count;
+
+    /// <summary>Finishes committed work, then processes every leftover and every candidate; stops between units when <paramref name="stop"/> is cancelled.</summary>
+    public async Task<BatchCounts> ProcessAsync(IReadOnlyList<string> candidates, CancellationToken stop)
+    {
+        if (_journal is null)
+        {
+            Start();
+        }
+
+        var total = FinishCommitted();
+        Journal.Refresh();
+        var leftovers = intake.Leftovers();
+        for (var start = 0; start < leftovers.Count && !stop.IsCancellationRequested; start += batchSize)
+        {
+            total.Add(await ProcessBatchAsync([.. leftovers.Skip(start).Take(batchSize)], stop).ConfigureAwait(false));
+        }
+
+        for (var start = 0; start < candidates.Count && !stop.IsCancellationRequested; start += batchSize)
+        {
+            var taken = intake.Take([.. candidates.Skip(start).Take(batchSize)]);
+            if (taken.Count > 0)
+            {
+                total.Add(await ProcessBatchAsync(taken, stop).ConfigureAwait(false));
+            }
         }
 
         return total;
     }
 
-    private async Task<BatchCounts> ProcessBatchAsync(string[] batch, CancellationToken stop)
+    /// <summary>Finishes, from the journal alone, the batches committed before a crash, a stop or an output fault; counts the inputs it moved on.</summary>
+    private BatchCounts FinishCommitted()
     {
-        var processed = new ProcessedUnit?[batch.Length];
-        var unreadable = 0;
+        var counts = new BatchCounts();
+        var journal = Journal;
+        var batches = 0;
+        foreach (var batch in journal.Unlogged.ToList())
+        {
+            foreach (var file in batch.Files)
+            {
+                if (!summaries.RollForward(file))
+                {
+                    Log.CommittedFileMissing(logger, file, batch.Id);
+                }
+            }
+
+            audit.AppendLines([.. batch.Units.Select(u => u.Line)]);
+            journal.MarkLogged(batch.Id);
+            batches++;
+        }
+
+        var moved = 0;
+        if (journal.CommittedClaims.Count > 0)
+        {
+            var present = intake.Leftovers().Where(i => i.Claim is not null).ToDictionary(i => i.Claim!, StringComparer.Ordinal);
+            foreach (var (claim, (unit, at)) in journal.CommittedClaims.ToList())
+            {
+                if (present.TryGetValue(claim, out var input))
+                {
+                    Dispose(input, unit, at);
+                    moved++;
+                    if (unit.Outcome == JournalOutcomes.Duplicate)
+                    {
+                        counts.AddDuplicate();
+                    }
+                    else
+                    {
+                        counts.Add(unit.Ruling switch { "pass" => Ruling.Pass, "fail" => Ruling.Fail, "retest" => Ruling.Retest, _ => Ruling.Rejected });
+                    }
+                }
+
+                journal.ClaimDone(claim);
+            }
+        }
+
+        if (batches > 0 || moved > 0)
+        {
+            Log.Recovered(logger, batches, moved);
+        }
+
+        return counts;
+    }
+
+    private async Task<BatchCounts> ProcessBatchAsync(IReadOnlyList<InputFile> batch, CancellationToken stop)
+    {
+        var processed = new ProcessedUnit?[batch.Count];
         var counts = new BatchCounts();
         var parallel = new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount };
-        Parallel.For(0, batch.Length, parallel, (i, state) =>
+        var unreadable = new bool[batch.Count];
+        Parallel.For(0, batch.Count, parallel, (i, state) =>
         {
             if (stop.IsCancellationRequested)
             {
@@ -60,61 +178,190 @@ public sealed class BatchRunner(
             }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
-                Interlocked.Increment(ref unreadable);
-                Log.InputUnreadable(logger, Path.GetFileName(batch[i]), e.Message);
+                unreadable[i] = true;
+                LogUnreadable(batch[i].Name, e.Message);
             }
         });
 
-        var processedAt = clock.GetUtcNow().UtcDateTime;
-        processedAt = new DateTime(processedAt.Ticks - (processedAt.Ticks % TimeSpan.TicksPerMillisecond), DateTimeKind.Utc);
-        var units = processed.OfType<ProcessedUnit>().ToList();
-        for (var i = 0; i < unreadable; i++)
+        for (var i = 0; i < batch.Count; i++)
         {
-            counts.AddSkipped();
+            if (unreadable[i])
+            {
+                counts.AddSkipped();
+            }
+            else if (processed[i] is null)
+            {
+                intake.Release(batch[i]); // not started because of a stop: ready again
+            }
         }
 
-        var records = units.Select(u => SummaryRecordFactory.Create(u.Evaluation, u.File.Sha256, processedAt, toolVersion, u.File.Metadata)).ToList();
-        if (records.Count == 0)
+        var units = processed.OfType<ProcessedUnit>().ToList();
+        if (units.Count == 0)
         {
             return counts;
         }
 
+        var processedAt = clock.GetUtcNow().UtcDateTime;
+        processedAt = new DateTime(processedAt.Ticks - (processedAt.Ticks % TimeSpan.TicksPerMillisecond), DateTimeKind.Utc);
+        var journal = Journal;
+        var records = new List<SummaryRecord>(units.Count);
+        var entries = new List<JournalUnit>(units.Count);
+        var published = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry)>(units.Count);
+        var duplicates = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry, string FirstAt, string FirstRuling)>();
+        var keysInBatch = new Dictionary<string, (DateTime At, string Ruling, string File)>(StringComparer.Ordinal);
+        var latestInBatch = new Dictionary<string, string>(StringComparer.Ordinal);
+        foreach (var unit in units)
+        {
+            var record = SummaryRecordFactory.Create(unit.Evaluation, unit.File.Sha256, processedAt, toolVersion, unit.File.Metadata);
+            var first = journal.Lookup(record.UnitKey);
+            if (first is not null || keysInBatch.ContainsKey(record.UnitKey))
+            {
+                var (firstAt, firstRuling, firstFile) = first is { } f ? (f.At, f.Ruling, (string?)null) : keysInBatch[record.UnitKey];
+                var at = firstAt.ToString("yyyy-MM-dd'T'HH:mm:ss.fff'Z'", CultureInfo.InvariantCulture);
+                var why = firstFile is null ? Messages.DuplicateOfPublished(at, firstRuling, record.UnitKey) : Messages.Duplicate(at, firstFile, firstRuling);
+                var entry = Entry(unit, record, JournalOutcomes.Duplicate, PassFailLog.FormatLine(record, "duplicate", [ReasonCodes.InputDuplicate.Code]));
+                entry.Code = ReasonCodes.InputDuplicate.Code;
+                entry.Where = unit.File.Name;
+                entry.Why = why;
+                entries.Add(entry);
+                duplicates.Add((unit, record, entry, at, firstRuling));
+                continue;
+            }
+
+            var serialKey = (record.Part ?? "").ToUpperInvariant() + "\n" + record.Serial;
+            if (record.Serial is not null)
+            {
+                record.RetestOf = latestInBatch.GetValueOrDefault(serialKey) ?? journal.LatestFor(record.Part, record.Serial);
+                latestInBatch[serialKey] = record.UnitKey;
+            }
+
+            keysInBatch[record.UnitKey] = (processedAt, record.Ruling, unit.File.Name);
+            var outcome = unit.Evaluation.Ruling == Ruling.Rejected ? JournalOutcomes.Reject : JournalOutcomes.Archive;
+            var published1 = Entry(unit, record, outcome, PassFailLog.FormatLine(record));
+            if (unit.Evaluation.Problem is { } problem)
+            {
+                published1.Code = problem.Code;
+                published1.Where = problem.Location.ToString();
+                published1.Why = problem.Message;
+            }
+
+            records.Add(record);
+            entries.Add(published1);
+            published.Add((unit, record, published1));
+        }
+
+        // Phase 1: the rows on disk under temporary names. Phase 2: the commit line. Then the renames.
+        var prepared = records.Count > 0 ? await summaries.PrepareAsync(records, CancellationToken.None).ConfigureAwait(false) : null;
+        var committed = new JournalBatch
+        {
+            Id = string.Create(CultureInfo.InvariantCulture, $"{runId}-b{Interlocked.Increment(ref _batchSequence):D6}"),
+            At = processedAt,
+            Files = prepared is null ? [] : [.. prepared.RelativeFinals],
+            Units = entries,
+        };
         try
         {
-            await summaries.WriteAsync(records, CancellationToken.None).ConfigureAwait(false);
+            journal.Commit(committed);
         }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        catch
         {
-            Log.SummaryWriteFailed(logger, e);
+            prepared?.Abandon();
             throw;
         }
 
-        audit.Append(records);
-        for (var i = 0; i < units.Count; i++)
+        prepared?.Complete();
+        audit.AppendLines([.. entries.Select(e => e.Line)]);
+        journal.MarkLogged(committed.Id);
+
+        foreach (var (unit, record, entry) in published)
         {
-            var unit = units[i];
+            var name = Printable.Of(unit.File.Name);
             if (unit.Evaluation.Ruling == Ruling.Rejected)
             {
-                var problem = unit.Evaluation.Problem!;
-                Log.UnitRejected(logger, unit.File.Name, problem.Code, problem.Location.ToString(), problem.Message);
-                disposer.Reject(unit.InputPath, unit.File.Sha256, processedAt, problem);
+                var where = Printable.Of(entry.Where);
+                var why = Printable.Of(entry.Why);
+                Log.UnitRejected(logger, name, entry.Code!, where, why);
             }
-            else
+            else if (logger.IsEnabled(LogLevel.Debug))
             {
-                if (logger.IsEnabled(LogLevel.Debug))
-                {
-                    var reasons = string.Join(',', records[i].ReasonCodes);
-                    Log.UnitJudged(logger, records[i].Serial, unit.File.Name, records[i].Ruling, reasons);
-                }
-
-                disposer.Archive(unit.InputPath, unit.File.Sha256, processedAt);
+                var serial = Printable.Of(record.Serial);
+                var reasons = string.Join(',', record.ReasonCodes);
+                Log.UnitJudged(logger, serial, name, record.Ruling, reasons);
             }
+        }
 
+        foreach (var (unit, record, _, firstAt, firstRuling) in duplicates)
+        {
+            var name = Printable.Of(unit.File.Name);
+            Log.UnitDuplicate(logger, name, record.UnitKey, firstAt, firstRuling);
+        }
+
+        // Last: move each input on. A failure here leaves the rest claimed and committed: finished next pass.
+        foreach (var (unit, record, entry) in published)
+        {
+            Dispose(unit.Input, entry, processedAt);
             counts.Add(unit.Evaluation.Ruling);
-            OnPublished?.Invoke(records[i]);
+            OnPublished?.Invoke(record);
+        }
+
+        foreach (var (unit, record, entry, _, _) in duplicates)
+        {
+            Dispose(unit.Input, entry, processedAt);
+            counts.AddDuplicate();
+            OnDuplicate?.Invoke(record);
         }
 
         Log.BatchPublished(logger, counts.Processed, counts.Passed, counts.Failed, counts.Retest, counts.Rejected);
         return counts;
+    }
+
+    private void Dispose(InputFile input, JournalUnit unit, DateTime at)
+    {
+        if (unit.Outcome == JournalOutcomes.Archive)
+        {
+            disposer.Archive(input, unit.Sha256, at);
+        }
+        else
+        {
+            disposer.Reject(input, unit.Sha256, at, new RejectionNote(unit.Code ?? ReasonCodes.InternalError.Code, unit.Where ?? input.Name, unit.Why ?? ""));
+        }
+
+        if (input.Claim is { } claim)
+        {
+            Journal.ClaimDone(claim);
+        }
+    }
+
+    private static JournalUnit Entry(ProcessedUnit unit, SummaryRecord record, string outcome, string line) => new()
+    {
+        Claim = unit.Input.Claim,
+        Name = unit.Input.Name,
+        Key = record.UnitKey,
+        Part = record.Part,
+        Serial = record.Serial,
+        Outcome = outcome,
+        Ruling = record.Ruling,
+        Line = line,
+    };
+
+    private void LogUnreadable(string name, string why)
+    {
+        var now = clock.GetTimestamp();
+        lock (_unreadableLogged)
+        {
+            if (_unreadableLogged.TryGetValue(name, out var last) && clock.GetElapsedTime(last, now) < RepeatLogInterval)
+            {
+                return;
+            }
+
+            _unreadableLogged[name] = now;
+            if (_unreadableLogged.Count > 10_000)
+            {
+                _unreadableLogged.Clear();
+            }
+        }
+
+        var shown = Printable.Of(name);
+        Log.InputUnreadable(logger, shown, why);
     }
 }

@@ -9,48 +9,86 @@ using StandFit.Edges.RecipeFiles;
 namespace StandFit.Edges.Processing;
 
 /// <summary>
-/// The composition root shared by <c>run</c> and <c>watch</c>: builds the reader, the recipe
-/// catalog, the sinks and the batch runner from validated options. Plain objects, no host needed.
+/// The composition root shared by <c>run</c> and <c>watch</c>: takes the worker identity's lock,
+/// builds the reader, the recipes in force, the intake (claims out of the inbox, or a folder read in
+/// place), the sinks and the batch runner from validated options. Plain objects, no host needed.
+/// Throws <see cref="WorkerBusyException"/> when another process works under the same identity.
 /// </summary>
-public sealed class Pipeline
+public sealed class Pipeline : IDisposable
 {
-    private Pipeline(RecipeCatalog catalog, UnitProcessor processor, BatchRunner runner)
+    private readonly WorkerLock _lock;
+
+    private Pipeline(WorkerLock workerLock, RecipeSource recipes, UnitProcessor processor, BatchRunner runner, ClaimFolder? claims)
     {
-        Catalog = catalog;
+        _lock = workerLock;
+        Recipes = recipes;
         Processor = processor;
         Runner = runner;
+        Claims = claims;
     }
 
-    public RecipeCatalog Catalog { get; }
+    /// <summary>The recipes in force at start.</summary>
+    public RecipeCatalog Catalog => Recipes.Current;
+
+    /// <summary>The recipes in force, reloaded by <c>watch</c> when their folder changes.</summary>
+    public RecipeSource Recipes { get; }
 
     public UnitProcessor Processor { get; }
 
     public BatchRunner Runner { get; }
 
-    public static Pipeline Build(StandFitOptions options, ILoggerFactory loggers, DispositionMode mode, TimeProvider clock, Action<SummaryRecord>? onPublished = null)
+    /// <summary>The claim folder (inbox mode), or null (read in place).</summary>
+    public ClaimFolder? Claims { get; }
+
+    public static Pipeline Build(
+        StandFitOptions options,
+        ILoggerFactory loggers,
+        DispositionMode mode,
+        TimeProvider clock,
+        Action<SummaryRecord>? onPublished = null,
+        Action<SummaryRecord>? onDuplicate = null)
     {
         var logger = loggers.CreateLogger("StandFit");
-        var catalog = RecipeCatalog.Load(options.Recipes);
-        foreach (var problem in catalog.Problems)
+        var workerLock = WorkerLock.Acquire(options.Output, options.WorkerId);
+        try
         {
-            Log.RecipeProblem(logger, problem.ToString());
-        }
+            var catalog = RecipeCatalog.Load(options.Recipes);
+            foreach (var problem in catalog.Problems)
+            {
+                Log.RecipeProblem(logger, problem.ToString());
+            }
 
-        Log.RecipesLoaded(logger, catalog.Recipes.Length, options.Recipes);
-        var processor = new UnitProcessor(new SweepFileReader(options.MaxFileBytes), () => catalog, logger);
-        var runId = ToolInfo.NewRunId(clock.GetUtcNow());
-        var runner = new BatchRunner(
-            processor,
-            new ParquetSummaryWriter(options.Output, runId),
-            new PassFailLog(options.Output),
-            new FileDisposer(options.Archive, options.Rejected, mode),
-            clock,
-            ToolInfo.Version,
-            options.FlushUnits,
-            logger)
+            Log.RecipesLoaded(logger, catalog.Recipes.Length, options.Recipes);
+            var recipes = new RecipeSource(options.Recipes, catalog, logger);
+            var processor = new UnitProcessor(new SweepFileReader(options.MaxFileBytes), () => recipes.Current, logger);
+            var runId = ToolInfo.NewRunId(clock.GetUtcNow(), options.WorkerId);
+            var claims = mode == DispositionMode.Move ? new ClaimFolder(options.Inbox, options.WorkerId) : null;
+            var runner = new BatchRunner(
+                processor,
+                new ParquetSummaryWriter(options.Output, runId, options.WorkerId),
+                new PassFailLog(options.Output),
+                new FileDisposer(options.Archive, options.Rejected, mode),
+                claims is null ? new InPlaceIntake() : claims,
+                options.Output,
+                options.WorkerId,
+                runId,
+                clock,
+                ToolInfo.Version,
+                options.FlushUnits,
+                logger)
+            {
+                OnPublished = onPublished,
+                OnDuplicate = onDuplicate,
+                RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
+            };
+            return new Pipeline(workerLock, recipes, processor, runner, claims);
+        }
+        catch
         {
-            OnPublished = onPublished,
-        };
-        return new Pipeline(catalog, processor, runner);
+            workerLock.Dispose();
+            throw;
+        }
     }
+
+    public void Dispose() => _lock.Dispose();
 }

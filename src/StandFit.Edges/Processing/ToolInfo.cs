@@ -9,7 +9,7 @@ public static class ToolInfo
     public static string Version { get; } =
         typeof(ToolInfo).Assembly.GetCustomAttribute<AssemblyInformationalVersionAttribute>()?.InformationalVersion ?? "0.0.0";
 
-    /// <summary>A run id unique on this machine: UTC start time and process id, safe in file names.</summary>
-    public static string NewRunId(DateTimeOffset nowUtc) =>
-        string.Create(CultureInfo.InvariantCulture, $"run-{nowUtc.UtcDateTime:yyyyMMdd'T'HHmmssfff}-{Environment.ProcessId}");
+    /// <summary>A run id unique among workers: UTC start time, worker id and process id, safe in file names.</summary>
+    public static string NewRunId(DateTimeOffset nowUtc, string workerId = "worker") =>
+        string.Create(CultureInfo.InvariantCulture, $"run-{nowUtc.UtcDateTime:yyyyMMdd'T'HHmmssfff}-{workerId}-{Environment.ProcessId}");
 }

@@ -4,6 +4,7 @@ using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
 using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
+using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
 using StandFit.Edges.Readers;
 using StandFit.Edges.RecipeFiles;
@@ -11,7 +12,7 @@ using StandFit.Edges.RecipeFiles;
 namespace StandFit.Edges.Processing;
 
 /// <summary>One input read and judged: the file's bytes' hash and the evaluation.</summary>
-public sealed record ProcessedUnit(string InputPath, SweepFile File, UnitEvaluation Evaluation);
+public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation);
 
 /// <summary>
 /// Reads one sweep file, picks its recipe and evaluates it. Failure policy: bad input becomes a
@@ -27,10 +28,13 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
     /// <summary>When set, this model replaces the recipe's (exploration with <c>inspect --model</c>).</summary>
     public LinearModel? ModelOverride { get; init; }
 
-    public ProcessedUnit Process(string path)
+    public ProcessedUnit Process(string path) => Process(new InputFile(path, Path.GetFileName(path), null));
+
+    /// <summary>Reads the input (its cell format chosen by the recipe its leading metadata names) and judges it.</summary>
+    public ProcessedUnit Process(InputFile input)
     {
-        var file = reader.Read(path);
-        return new ProcessedUnit(path, file, Evaluate(file));
+        var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? recipes().FormatFor(metadata), input.Name);
+        return new ProcessedUnit(input, file, Evaluate(file));
     }
 
     public UnitEvaluation Evaluate(SweepFile file)
@@ -49,6 +53,14 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
             {
                 var identity = SweepAssembler.ReadIdentity(table);
                 return UnitEvaluation.Rejected(file.Name, recipe.Problems[0], identity.IsSuccess ? identity.Value : null);
+            }
+
+            if (recipe.Value.Format != file.Format)
+            {
+                // The leading metadata named another part than the strict read did: the cells were split for another recipe.
+                var identity = SweepAssembler.ReadIdentity(table);
+                var mismatch = new Problem(ReasonCodes.InputWrongSeparator.Code, Messages.WrongSeparator(recipe.Value.Format.CellSeparator, file.Format.CellSeparator), SourceLocation.WholeFile(file.Name));
+                return UnitEvaluation.Rejected(file.Name, mismatch, identity.IsSuccess ? identity.Value : null, recipe.Value);
             }
 
             return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride);

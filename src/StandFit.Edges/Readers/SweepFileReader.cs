@@ -7,7 +7,11 @@ namespace StandFit.Edges.Readers;
 
 /// <summary>A sweep file as read from disk: its bytes' SHA-256 and its parsed table (or why it has none).</summary>
 /// <remarks><see cref="Metadata"/> is the table's, or, when the table could not be made, what a lenient scan of the leading metadata lines found.</remarks>
-public sealed record SweepFile(string Name, string Sha256, long Bytes, Result<SweepTable> Table, ImmutableArray<MetadataEntry> Metadata);
+public sealed record SweepFile(string Name, string Sha256, long Bytes, Result<SweepTable> Table, ImmutableArray<MetadataEntry> Metadata)
+{
+    /// <summary>The cell and number format the table was split with (chosen from the leading metadata's part).</summary>
+    public SweepFormat Format { get; init; } = SweepFormat.Standard;
+}
 
 /// <summary>
 /// Reads a sweep file: size limit, then strict decoding (UTF-8, with or without a byte-order mark;
@@ -27,9 +31,12 @@ public sealed class SweepFileReader
 
     public long MaxFileBytes { get; }
 
-    public SweepFile Read(string path)
+    /// <param name="path">The file to read.</param>
+    /// <param name="formatFor">Chooses the cell format from the leading metadata lines (the part's recipe); standard when null.</param>
+    /// <param name="name">The name shown in messages and rows (the input's own name when it is read from a claimed copy).</param>
+    public SweepFile Read(string path, Func<ImmutableArray<MetadataEntry>, SweepFormat>? formatFor = null, string? name = null)
     {
-        var name = Path.GetFileName(path);
+        name ??= Path.GetFileName(path);
         var length = new FileInfo(path).Length;
         if (length > MaxFileBytes)
         {
@@ -38,11 +45,11 @@ public sealed class SweepFileReader
         }
 
         var bytes = File.ReadAllBytes(path);
-        return Parse(name, bytes);
+        return Parse(name, bytes, formatFor);
     }
 
     /// <summary>Decodes and parses bytes already in memory (the file's name is used in messages).</summary>
-    public static SweepFile Parse(string name, ReadOnlySpan<byte> bytes)
+    public static SweepFile Parse(string name, ReadOnlySpan<byte> bytes, Func<ImmutableArray<MetadataEntry>, SweepFormat>? formatFor = null)
     {
         var sha = Hashing.Sha256Hex(bytes);
         var text = Decode(name, bytes);
@@ -51,9 +58,11 @@ public sealed class SweepFileReader
             return new SweepFile(name, sha, bytes.Length, Result<SweepTable>.Failure(text.Problems), []);
         }
 
-        var table = SweepTextParser.Parse(name, text.Value);
-        var metadata = table.IsSuccess ? table.Value.Metadata : SweepTextParser.ScanMetadata(text.Value);
-        return new SweepFile(name, sha, bytes.Length, table, metadata);
+        var scanned = SweepTextParser.ScanMetadata(text.Value);
+        var format = formatFor?.Invoke(scanned) ?? SweepFormat.Standard;
+        var table = SweepTextParser.Parse(name, text.Value, format);
+        var metadata = table.IsSuccess ? table.Value.Metadata : scanned;
+        return new SweepFile(name, sha, bytes.Length, table, metadata) { Format = format };
     }
 
     public static Result<string> Decode(string name, ReadOnlySpan<byte> bytes)

@@ -27,6 +27,7 @@ public static class RecipeBinder
     public static readonly ImmutableArray<string> GateKeys = RecipeSchema.Root.Child("gates").ChildNames;
     public static readonly ImmutableArray<string> RunsGateKeys = RecipeSchema.Root.Child("gates").Child("runs_test").ChildNames;
 
+    public static readonly ImmutableArray<string> DecimalSeparators = RecipeSchema.DecimalSeparators;
     public static readonly ImmutableArray<string> TemperatureUnits = RecipeSchema.TemperatureUnits;
     public static readonly ImmutableArray<string> WeightKeys = RecipeSchema.Root.Child("weights").ChildNames;
 
@@ -75,6 +76,7 @@ public static class RecipeBinder
         var (columns, inputCount) = ReadColumns(top);
         var units = ReadUnits(top, inputCount);
         var model = ReadModel(top, inputCount);
+        var format = ReadFormat(top);
         var confidence = ReadConfidence(top);
         var weights = ReadWeights(top);
         var derived = ReadDerived(top, model);
@@ -100,7 +102,8 @@ public static class RecipeBinder
             runsGate,
             contentHash,
             sink.File,
-            weights.Rule)
+            weights.Rule,
+            format)
         {
             Derived = derived,
             Sweep = sweep,
@@ -108,6 +111,21 @@ public static class RecipeBinder
             Extends = extends,
             IsFamily = family,
         };
+    }
+
+    private static SweepFormat ReadFormat(MapReader top)
+    {
+        var text = top.Text("decimal_separator", required: false);
+        switch (text)
+        {
+            case null or "point":
+                return SweepFormat.Standard;
+            case "comma":
+                return SweepFormat.DecimalComma;
+            default:
+                top.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice("'decimal_separator'", text, DecimalSeparators, Suggestions.Closest(text, DecimalSeparators)), top.Node("decimal_separator"));
+                return SweepFormat.Standard;
+        }
     }
 
 

@@ -44,6 +44,23 @@ public sealed class RecipeCatalog
 
     public bool IsValid => Problems.IsEmpty;
 
+    /// <summary>The cell format of the recipe that the leading metadata's <c>part</c> names; standard when none does.</summary>
+    public SweepFormat FormatFor(ImmutableArray<MetadataEntry> metadata)
+    {
+        foreach (var m in metadata)
+        {
+            if (m.Key == MetadataKeys.Part)
+            {
+                return _byPart.TryGetValue(m.Value, out var recipe) ? recipe.Format : SweepFormat.Standard;
+            }
+        }
+
+        return SweepFormat.Standard;
+    }
+
+    /// <summary>The hashes of the recipe files in force, in name order: what changed between two loads.</summary>
+    public string Fingerprint => string.Join(",", Recipes.Select(r => r.SourceFile + "=" + r.ContentHash));
+
     /// <summary>The recipe for a sweep: by its <c>part</c> metadata, else by its file name against the recipes' file patterns.</summary>
     public Result<Recipe> Match(SweepTable table)
     {

@@ -48,6 +48,7 @@ public static class RecipeSchema
 {
     public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial", "basis", "steinhart-hart", "callendar-van-dusen"];
     public static readonly ImmutableArray<string> TemperatureUnits = ["kelvin", "celsius"];
+    public static readonly ImmutableArray<string> DecimalSeparators = ["point", "comma"];
     public static readonly ImmutableArray<string> Rules = ["guarded", "simple"];
     public static readonly ImmutableArray<string> LegNames = ["up", "down"];
 
@@ -76,6 +77,7 @@ public static class RecipeSchema
                     new("order", ValueKind.Text, "The acquisition order or time column; default: file order."),
                 ],
             },
+            new("decimal_separator", ValueKind.Text, "point (the default: comma-separated cells, 1.5) or comma (semicolon-separated cells, 1,5), for stands that write a decimal comma.") { Choices = DecimalSeparators },
             new("units", ValueKind.Map, "Units of the stimulus and output, free text; figures' units follow from them.")
             {
                 Children =

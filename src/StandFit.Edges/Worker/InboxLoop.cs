@@ -3,24 +3,83 @@ using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
 using StandFit.Edges.Outputs;
 using StandFit.Edges.Processing;
+using StandFit.Edges.RecipeFiles;
 
 namespace StandFit.Edges.Worker;
 
-/// <summary>
-/// The long-lived worker's loop, as a plain class: rescan the inbox on a timer (watcher events only
-/// wake it early), process what is ready, repeat until stopped. Failure policy: an output fault is
-/// retried with backoff (1 s doubling to 60 s) while the inputs stay in the inbox; an audit-sink
-/// failure ends the loop with <see cref="AuditSinkException"/>.
-/// </summary>
-public sealed class InboxLoop(string inbox, BatchRunner runner, TimeSpan pollInterval, TimeProvider clock, ILogger logger)
+/// <summary>The timings of the watch loop.</summary>
+public sealed record LoopSettings
 {
-    private static readonly TimeSpan MaxBackoff = TimeSpan.FromSeconds(60);
+    /// <summary>Rescan the inbox this often, watcher events or not.</summary>
+    public TimeSpan Poll { get; init; } = TimeSpan.FromSeconds(2);
+
+    /// <summary>A file's size and time must stay the same this long before it is taken.</summary>
+    public TimeSpan Stable { get; init; } = TimeSpan.FromSeconds(2);
+
+    /// <summary>Rewrite the status file this often.</summary>
+    public TimeSpan StatusInterval { get; init; } = TimeSpan.FromSeconds(5);
+
+    /// <summary>Log a fault that goes on at most this often.</summary>
+    public TimeSpan FaultLogInterval { get; init; } = TimeSpan.FromMinutes(5);
+
+    /// <summary>The first wait after a failed pass; it doubles up to <see cref="MaxBackoff"/>.</summary>
+    public TimeSpan FirstBackoff { get; init; } = TimeSpan.FromSeconds(1);
+
+    public TimeSpan MaxBackoff { get; init; } = TimeSpan.FromSeconds(60);
+
+    /// <summary>Where the status file goes; none when null.</summary>
+    public string? StatusFile { get; init; }
+}
+
+/// <summary>
+/// The long-lived worker's loop, as a plain class: read the journal and finish committed work;
+/// then rescan the inbox on a timer (watcher events only wake it early), reload the recipes if their
+/// folder changed, take what is ready and stable, process it, repeat until stopped; write the status
+/// file on its own timer. Failure policy: an output fault (output, archive or rejected folder
+/// missing, read-only or full; the pass/fail log unwritable) is retried with backoff (doubling up to
+/// a minute) while the inputs stay claimed, logged once per interval, and clears by itself; a
+/// damaged journal or an unexpected exception ends the loop (the host then exits with code 5).
+/// </summary>
+public sealed class InboxLoop
+{
+    private readonly string _inbox;
+    private readonly BatchRunner _runner;
+    private readonly RecipeSource? _recipes;
+    private readonly LoopSettings _settings;
+    private readonly TimeProvider _clock;
+    private readonly ILogger _logger;
+    private readonly InboxScanner _scanner;
+    private readonly FaultReporter _outputFault;
+    private readonly FaultReporter _inboxFault;
     private TaskCompletionSource _wake = NewSignal();
+    private bool _statusFaultLogged;
+
+    public InboxLoop(string inbox, BatchRunner runner, RecipeSource? recipes, LoopSettings settings, TimeProvider clock, ILogger logger)
+    {
+        _inbox = inbox;
+        _runner = runner;
+        _recipes = recipes;
+        _settings = settings;
+        _clock = clock;
+        _logger = logger;
+        _scanner = new InboxScanner(inbox, settings.Stable, clock);
+        _outputFault = new FaultReporter("Output (summaries, journal, pass/fail log, archive or rejected folder)", settings.FaultLogInterval, clock, logger);
+        _inboxFault = new FaultReporter("The inbox", settings.FaultLogInterval, clock, logger);
+        Status = new WorkerStatus(runner.WorkerId, ToolInfo.Version, clock.GetUtcNow().UtcDateTime);
+    }
 
     /// <summary>Raised after each pass over the inbox, with the counts of that pass (tests wait on it).</summary>
     public event Action<BatchCounts>? PassCompleted;
 
+    /// <summary>Raised after each pass that failed, with its exception (tests wait on it).</summary>
+    public event Action<Exception>? PassFailed;
+
+    /// <summary>Raised after each write of the status file.</summary>
+    public event Action? StatusWritten;
+
     public BatchCounts Totals { get; } = new();
+
+    public WorkerStatus Status { get; }
 
     /// <summary>Wakes the loop before the next rescan (a watcher event).</summary>
     public void Nudge() => Volatile.Read(ref _wake).TrySetResult();
@@ -29,40 +88,132 @@ public sealed class InboxLoop(string inbox, BatchRunner runner, TimeSpan pollInt
 
     public async Task RunAsync(CancellationToken stop)
     {
-        Log.WorkerStarted(logger, inbox, pollInterval.TotalSeconds);
-        using var watcher = new InboxWatcher(inbox, Nudge, logger);
+        _runner.Start();
+        Log.WorkerStarted(_logger, _inbox, _settings.Poll.TotalSeconds);
+        using var watcher = new InboxWatcher(_inbox, Nudge, _logger);
+        using var statusStop = CancellationTokenSource.CreateLinkedTokenSource(stop);
+        Status.SetState("running");
+        var statusTask = _settings.StatusFile is null ? Task.CompletedTask : WriteStatusPeriodicallyAsync(statusStop.Token);
         var backoff = TimeSpan.Zero;
-        while (!stop.IsCancellationRequested)
+        try
         {
-            var delay = pollInterval;
-            try
+            while (!stop.IsCancellationRequested)
             {
-                var counts = await runner.ProcessAsync(DropFolder.ListReady(inbox), stop).ConfigureAwait(false);
-                Totals.Add(counts);
-                backoff = TimeSpan.Zero;
-                PassCompleted?.Invoke(counts);
-            }
-            catch (AuditSinkException e)
-            {
-                Log.AuditSinkFailed(logger, e);
-                throw;
-            }
-            catch (Exception e) when (e is IOException or UnauthorizedAccessException)
-            {
-                backoff = backoff == TimeSpan.Zero ? TimeSpan.FromSeconds(1) : TimeSpan.FromTicks(Math.Min(backoff.Ticks * 2, MaxBackoff.Ticks));
-                delay = backoff;
-            }
-
-            using var delayCancel = CancellationTokenSource.CreateLinkedTokenSource(stop);
-            var woken = Volatile.Read(ref _wake).Task;
-            await Task.WhenAny(woken, Task.Delay(delay, clock, delayCancel.Token)).ConfigureAwait(false);
-            await delayCancel.CancelAsync().ConfigureAwait(false);
-            if (woken.IsCompleted)
-            {
-                Interlocked.Exchange(ref _wake, NewSignal());
+                _recipes?.Check();
+                var ok = await PassAsync(stop).ConfigureAwait(false);
+                backoff = ok ? TimeSpan.Zero : Next(backoff);
+                var delay = ok ? _settings.Poll : backoff;
+                using var delayCancel = CancellationTokenSource.CreateLinkedTokenSource(stop);
+                var woken = Volatile.Read(ref _wake).Task;
+                await Task.WhenAny(woken, Task.Delay(delay, _clock, delayCancel.Token)).ConfigureAwait(false);
+                await delayCancel.CancelAsync().ConfigureAwait(false);
+                if (woken.IsCompleted)
+                {
+                    Interlocked.Exchange(ref _wake, NewSignal());
+                }
             }
         }
+        finally
+        {
+            Status.SetState(stop.IsCancellationRequested ? "stopped" : "failed");
+            await statusStop.CancelAsync().ConfigureAwait(false);
+            await statusTask.ConfigureAwait(false);
+            WriteStatus();
+        }
 
-        Log.WorkerStopping(logger);
+        Log.WorkerStopping(_logger);
+    }
+
+    /// <summary>One pass: scan, then finish and process what is in hand; false when a fault stopped it.</summary>
+    private async Task<bool> PassAsync(CancellationToken stop)
+    {
+        IReadOnlyList<string> ready = [];
+        var ok = true;
+        try
+        {
+            ready = _scanner.Scan();
+            _inboxFault.Succeeded();
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            _inboxFault.Failed(e);
+            Status.SetError(e.Message, _clock.GetUtcNow().UtcDateTime);
+            ok = false;
+        }
+
+        try
+        {
+            var counts = await _runner.ProcessAsync(ready, stop).ConfigureAwait(false);
+            _outputFault.Succeeded();
+            Totals.Add(counts);
+            Status.Add(counts, _clock.GetUtcNow().UtcDateTime);
+            Status.SetHeld(SafeHeld());
+            PassCompleted?.Invoke(counts);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or AuditSinkException)
+        {
+            _outputFault.Failed(e);
+            Status.SetError(e.Message, _clock.GetUtcNow().UtcDateTime);
+            Status.SetHeld(SafeHeld());
+            PassFailed?.Invoke(e);
+            ok = false;
+        }
+
+        return ok;
+    }
+
+    private TimeSpan Next(TimeSpan backoff) =>
+        backoff == TimeSpan.Zero ? _settings.FirstBackoff : TimeSpan.FromTicks(Math.Min(backoff.Ticks * 2, _settings.MaxBackoff.Ticks));
+
+    private int SafeHeld()
+    {
+        try
+        {
+            return _runner.Held();
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            return -1;
+        }
+    }
+
+    private async Task WriteStatusPeriodicallyAsync(CancellationToken stop)
+    {
+        using var timer = new PeriodicTimer(_settings.StatusInterval, _clock);
+        WriteStatus();
+        try
+        {
+            while (await timer.WaitForNextTickAsync(stop).ConfigureAwait(false))
+            {
+                WriteStatus();
+            }
+        }
+        catch (OperationCanceledException)
+        {
+            // Stopping: the final status is written by the loop.
+        }
+    }
+
+    private void WriteStatus()
+    {
+        if (_settings.StatusFile is not { } file)
+        {
+            return;
+        }
+
+        try
+        {
+            AtomicFile.Replace(file, Status.ToJson(_clock.GetUtcNow().UtcDateTime));
+            _statusFaultLogged = false;
+            StatusWritten?.Invoke();
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException)
+        {
+            if (!_statusFaultLogged)
+            {
+                _statusFaultLogged = true;
+                Log.StatusUnwritable(_logger, file, e.Message);
+            }
+        }
     }
 }

@@ -14,7 +14,7 @@ public sealed class SweepAssemblerInputsTests
         3,200,-10,3.98,0.003
         """;
 
-    private static SweepTable Table(string text = Text) => SweepTextParser.Parse("PS-9.csv", text).Value;
+    private static SweepTable Table(string text = Text) => SweepTextParser.Parse("PS-9.csv", text.EndsWith('\n') ? text : text + "\n").Value;
 
     [Fact]
     public void Every_stimulus_column_and_the_uncertainty_column_are_read_and_ordered_together()

@@ -11,7 +11,8 @@ public sealed class SweepAssemblerTests
 
     private static readonly ColumnMap PlainColumns = new("pressure_kPa", "output_mV");
 
-    private static SweepTable Table(string text, string file = File) => SweepTextParser.Parse(file, text).Value;
+    // Raw string literals end without a line end; a stand's file ends with one (the parser refuses a cut-off last row).
+    private static SweepTable Table(string text, string file = File) => SweepTextParser.Parse(file, text.EndsWith('\n') ? text : text + "\n").Value;
 
     private static Problem SingleProblem<T>(Result<T> result)
     {
@@ -331,5 +332,20 @@ public sealed class SweepAssemblerTests
     {
         Assert.Equal("a\\u000ab", SweepAssembler.Shown("a\nb"));
         Assert.Equal(new string('x', 40) + "...", SweepAssembler.Shown(new string('x', 100)));
+    }
+
+    [Fact]
+    public void A_decimal_comma_is_read_where_the_format_declares_it_and_a_decimal_point_is_then_refused()
+    {
+        var good = SweepAssembler.Assemble(SweepTextParser.Parse(File, "pressure_kPa;output_mV\n0,5;1,25\n2;3,5\n", SweepFormat.DecimalComma).Value, PlainColumns, SweepFormat.DecimalComma);
+        Assert.Equal([0.5, 2.0], good.Value.Stimulus.ToArray());
+        Assert.Equal([1.25, 3.5], good.Value.Output.ToArray());
+
+        var point = SingleProblem(SweepAssembler.Assemble(SweepTextParser.Parse(File, "pressure_kPa;output_mV\n0.5;1,25\n", SweepFormat.DecimalComma).Value, PlainColumns, SweepFormat.DecimalComma));
+        Assert.Equal("input.bad_number", point.Code);
+        Assert.Contains("decimal comma", point.Message, StringComparison.Ordinal);
+
+        var thousands = SingleProblem(SweepAssembler.Assemble(SweepTextParser.Parse(File, "pressure_kPa;output_mV\n1.000,5;1,25\n", SweepFormat.DecimalComma).Value, PlainColumns, SweepFormat.DecimalComma));
+        Assert.Equal("input.bad_number", thousands.Code);
     }
 }

@@ -24,7 +24,7 @@ public sealed class SweepTextParserTests
             50,10.02
             """;
 
-        var table = SweepTextParser.Parse(File, text).Value;
+        var table = SweepTextParser.Parse(File, text + "\n").Value;
 
         Assert.Equal(File, table.SourceName);
         Assert.Equal(["serial", "part"], table.Metadata.Select(m => m.Key));
@@ -226,5 +226,31 @@ public sealed class SweepTextParserTests
         var table = SweepTextParser.Parse(File, "x\r\n" + longCell + "\r\n").Value;
 
         Assert.Equal(SweepTextParser.MaxLineLength, Assert.Single(table.Rows).Cells[0].Length);
+    }
+
+    [Fact]
+    public void A_last_row_without_its_line_end_is_refused_as_truncated()
+    {
+        // Cut in the middle of the last number: "10.0" would otherwise read as a valid reading.
+        var problem = SingleProblem(SweepTextParser.Parse(File, "x,y\n0,0.01\n50,10.0"));
+
+        Assert.Equal("input.truncated", problem.Code);
+        Assert.Equal(3, problem.Location.Line);
+    }
+
+    [Fact]
+    public void A_semicolon_export_read_with_the_standard_format_is_refused_as_the_wrong_separator()
+    {
+        var problem = SingleProblem(SweepTextParser.Parse(File, "step;pressure_kPa;output_mV\n1;0,0;0,01\n"));
+
+        Assert.Equal("input.wrong_separator", problem.Code);
+    }
+
+    [Fact]
+    public void A_decimal_comma_format_splits_cells_on_semicolons()
+    {
+        var table = SweepTextParser.Parse(File, "x;y\n0,5;1,25\n", SweepFormat.DecimalComma).Value;
+
+        Assert.Equal(["0,5", "1,25"], table.Rows[0].Cells.ToArray());
     }
 }

@@ -18,8 +18,8 @@ public sealed class InboxLoopTests
         using var root = new TempFolder();
         var options = ConfigLoader.Load(DemoSet.WriteConfig(root)).Value;
         Assert.Empty(ConfigLoader.PrepareFolders(options, needInbox: true));
-        var pipeline = Pipeline.Build(options, NullLoggerFactory.Instance, DispositionMode.Move, TimeProvider.System);
-        var loop = new InboxLoop(options.Inbox, pipeline.Runner, TimeSpan.FromMilliseconds(200), TimeProvider.System, NullLogger.Instance);
+        using var pipeline = Pipeline.Build(options, NullLoggerFactory.Instance, DispositionMode.Move, TimeProvider.System);
+        var loop = new InboxLoop(options.Inbox, pipeline.Runner, pipeline.Recipes, new LoopSettings { Poll = TimeSpan.FromMilliseconds(200), Stable = TimeSpan.Zero }, TimeProvider.System, NullLogger.Instance);
         var allJudged = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
         var firstPass = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
         loop.PassCompleted += _ =>

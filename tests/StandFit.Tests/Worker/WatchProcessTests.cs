@@ -78,4 +78,107 @@ public sealed partial class WatchProcessTests
 
     [System.Text.RegularExpressions.GeneratedRegex(@"Batch of (\d+) units published")]
     private static partial System.Text.RegularExpressions.Regex BatchLine();
+
+    [Fact]
+    public async Task A_damaged_journal_is_a_fatal_error_and_the_process_exits_with_5()
+    {
+        using var root = new TempFolder();
+        var config = WorkerConfig.Write(root);
+        var journal = root.File(Path.Combine("output", "journal", "test-worker.jsonl"), "{\"batch\":\"x\",\"units\":[]}\nthis line is not JSON\n{\"logged\":\"x\"}\n");
+
+        var outcome = await StandFitProcess.RunAsync(root.Path, Timeout, "watch", "--config", config);
+
+        Assert.Equal(5, outcome.ExitCode);
+        Assert.Contains("Fatal error; the worker stops", outcome.Error, StringComparison.Ordinal);
+        Assert.Contains("Line 2 of the journal", outcome.Error, StringComparison.Ordinal);
+        Assert.True(File.Exists(journal));
+    }
+
+    [Fact]
+    public async Task A_second_worker_with_the_same_id_refuses_to_start_with_exit_code_3()
+    {
+        using var root = new TempFolder();
+        var config = WorkerConfig.Write(root);
+        var started = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        using var first = StandFitProcess.Start(root.Path, "watch", "--config", config);
+        first.ErrorDataReceived += (_, e) =>
+        {
+            if (e.Data?.Contains("Worker watching", StringComparison.Ordinal) == true)
+            {
+                started.TrySetResult();
+            }
+        };
+        first.BeginErrorReadLine();
+        first.BeginOutputReadLine();
+        try
+        {
+            await started.Task.WaitAsync(Timeout);
+            var second = await StandFitProcess.RunAsync(root.Path, Timeout, "watch", "--config", config);
+            Assert.Equal(3, second.ExitCode);
+            Assert.Contains("Another process works as worker 'test-worker'", second.Error, StringComparison.Ordinal);
+        }
+        finally
+        {
+            first.Kill();
+        }
+    }
+
+    [Fact]
+    public async Task The_worker_writes_its_status_file_with_counters_while_it_runs()
+    {
+        if (!OperatingSystem.IsLinux())
+        {
+            return; // SIGTERM delivery below is POSIX.
+        }
+
+        using var root = new TempFolder();
+        var config = WorkerConfig.Write(root);
+        var status = Path.Combine(root.Path, "output", "status-test-worker.json");
+        DemoSet.CopyInto(Path.Combine(root.Path, "inbox"));
+        var counted = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+        Directory.CreateDirectory(Path.Combine(root.Path, "output"));
+        using var watcher = new FileSystemWatcher(Path.Combine(root.Path, "output"), "status-test-worker.json");
+        watcher.Renamed += (_, _) =>
+        {
+            try
+            {
+                if (File.ReadAllText(status).Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"processed\": {DemoSet.Expected.Count},"), StringComparison.Ordinal))
+                {
+                    counted.TrySetResult();
+                }
+            }
+            catch (IOException)
+            {
+                // Replaced again while read: the next rename tells.
+            }
+        };
+        watcher.EnableRaisingEvents = true;
+        using var process = StandFitProcess.Start(root.Path, "watch", "--config", config);
+        process.BeginErrorReadLine();
+        process.BeginOutputReadLine();
+        try
+        {
+            await counted.Task.WaitAsync(Timeout);
+            using (var kill = System.Diagnostics.Process.Start("kill", ["-TERM", process.Id.ToString(System.Globalization.CultureInfo.InvariantCulture)]))
+            {
+                await kill.WaitForExitAsync();
+            }
+
+            await process.WaitForExitAsync().WaitAsync(Timeout);
+        }
+        finally
+        {
+            if (!process.HasExited)
+            {
+                process.Kill();
+            }
+        }
+
+        Assert.Equal(0, process.ExitCode);
+        var text = File.ReadAllText(status);
+        Assert.Contains("\"state\": \"stopped\"", text, StringComparison.Ordinal);
+        Assert.Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"passed\": {DemoSet.Expected.Count(e => e.Ruling == "pass")},"), text, StringComparison.Ordinal);
+        Assert.Contains("\"worker_id\": \"test-worker\"", text, StringComparison.Ordinal);
+        Assert.Contains("\"held\": 0", text, StringComparison.Ordinal);
+    }
 }
