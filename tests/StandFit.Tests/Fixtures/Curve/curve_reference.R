@@ -179,6 +179,12 @@ slope <- function(x) (ch[2] + 3 * ch[3] * log(x)^2) / x
 put("thermistor", "sens", slope(points))
 inverse("thermistor", sh, make, slope, c(1 / 298.15), min(ntc$r_ohm), max(ntc$r_ohm))
 
+# The same thermistor weighted by a reference uncertainty of 0.01 K + 0.0001 T: the response is
+# 1/T, so its uncertainty is u(T) / T^2 (delta method) and its weight T^4 / u(T)^2.
+ut <- 0.01 + 0.0001 * ntc$temp_K
+shw <- lm(I(1 / temp_K) ~ log(r_ohm) + I(log(r_ohm)^3), data = ntc, weights = ntc$temp_K^4 / ut^2)
+fit_summary("thermistor_weighted", shw)
+
 # ---- An invented Pt100 over 0 ... 400 C: Callendar-Van Dusen, trade coefficients by the delta method
 set.seed(20261204)
 t <- seq(0, 400, by = 20)
