@@ -97,7 +97,14 @@ public static class LeastSquaresFitter
                 return new Problem(ReasonCodes.InputBadUncertainty.Code, Messages.BadUncertainty(u), At(data, i));
             }
 
-            rowScale[i] = 1.0 / u;
+            // The response's uncertainty (a model fitting 1/T turns u(T) into u(T) / T^2); an
+            // output outside the transform's domain is reported below as fit.domain.
+            var uResponse = model.CheckResponse(data.Output[i]) is null ? model.TransformUncertainty(data.Output[i], u) : u;
+            rowScale[i] = 1.0 / uResponse;
+            if (!(uResponse > 0) || !double.IsFinite(rowScale[i]))
+            {
+                return new Problem(ReasonCodes.InputBadUncertainty.Code, Messages.BadUncertainty(uResponse), At(data, i));
+            }
         }
 
         // The response, and the model's domain at every point.

@@ -111,6 +111,12 @@ public abstract class LinearModel
     /// <summary>The response the model fits, from the output column's value (the identity unless the model says otherwise).</summary>
     public virtual double TransformResponse(double output) => output;
 
+    /// <summary>
+    /// The standard uncertainty of the fitted response from that of the output reading, by the
+    /// delta method (|d response / d output| u); u itself unless the model transforms the output.
+    /// </summary>
+    public virtual double TransformUncertainty(double output, double uncertainty) => uncertainty;
+
     /// <summary>What an output value breaks of the response transform's domain, or null.</summary>
     public virtual string? CheckResponse(double output) => null;
 

@@ -13,7 +13,8 @@ public enum TemperatureScale
 /// The Steinhart-Hart equation of an NTC thermistor (Steinhart and Hart 1968, Deep-Sea Research
 /// 15: 497): 1/T = A + B ln R + C (ln R)^3, T in kelvin, R in ohm. The stimulus is the
 /// thermistor's resistance and the output the reference temperature; the fitted response is 1/T
-/// (in 1/K), so residuals and bands are on that scale. Parameters A, B, C are the trade's own
+/// (in 1/K), so residuals and bands are on that scale; the readings' standard uncertainties of a
+/// weighted fit (in K) become u(1/T) = u(T) / T^2. Parameters A, B, C are the trade's own
 /// coefficients and are also the derived quantities.
 /// </summary>
 public sealed class SteinhartHart : BasisModel
@@ -44,6 +45,13 @@ public sealed class SteinhartHart : BasisModel
     }
 
     public override double TransformResponse(double output) => 1.0 / Kelvin(output);
+
+    /// <summary>u(1/T) = u(T) / T^2 (delta method), T in kelvin.</summary>
+    public override double TransformUncertainty(double output, double uncertainty)
+    {
+        var kelvin = Kelvin(output);
+        return uncertainty / (kelvin * kelvin);
+    }
 
     public override string? CheckResponse(double output) =>
         Kelvin(output) > 0 ? null : "Steinhart-Hart needs a temperature above 0 K";

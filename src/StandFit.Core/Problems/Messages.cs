@@ -102,6 +102,7 @@ public static class Messages
             ? F($"{where}: term '{term}' uses the input '{input}'; did you mean '{suggestion}'? The inputs are {string.Join(", ", inputs)} (the stimulus columns in order).")
             : F($"{where}: term '{term}' uses the input '{input}'; the inputs are {string.Join(", ", inputs)} (the stimulus columns in order).");
     public static string TermBadPower(string where, string term, string power, string expected) => F($"{where}: term '{term}' has the power '{power}'; write {expected}.");
+    public static string UnusedInput(string where, string symbol, int column) => F($"{where}: no term uses {symbol} (stimulus column {column}); use it in a term or remove the column from 'columns.stimulus'.");
     public static string DuplicateTerm(string where, string term, string earlier) => F($"{where}: term '{term}' is the same function as the earlier term '{earlier}'; give each term once.");
     public static string TooManyTerms(string where, int terms, int limit) => F($"{where} has {terms} terms; at most {limit} are allowed.");
     public static string BadParameterName(string where, string name) => F($"{where}: '{name}' cannot name a parameter; use a letter followed by letters, digits or '_'.");

@@ -36,15 +36,6 @@ public sealed record ColumnUnits
         other is not null && Inputs.SequenceEqual(other.Inputs, StringComparer.Ordinal) && Output == other.Output;
 
     public override int GetHashCode() => HashCode.Combine(string.Join('\u001f', Inputs), Output);
-
-    /// <summary>The unit of a polynomial coefficient of the given power: output / stimulus^power.</summary>
-    public string OfPower(int power) => power switch
-    {
-        _ when Output.Length == 0 && Stimulus.Length == 0 => "",
-        0 => Output,
-        1 => $"{Output}/{Stimulus}",
-        _ => $"{Output}/{Stimulus}^{power.ToString(System.Globalization.CultureInfo.InvariantCulture)}",
-    };
 }
 
 /// <summary>

@@ -355,6 +355,15 @@ public static class RecipeBinder
             terms.Add(term!);
         }
 
+        for (var k = 0; ok && k < inputCount; k++)
+        {
+            if (!terms.Any(t => t.Uses(k)))
+            {
+                model.Sink.Add(RecipeCodes.Contradiction, Messages.UnusedInput(where, symbols[k], k + 1), node);
+                ok = false;
+            }
+        }
+
         if (!ok)
         {
             return null;

@@ -60,10 +60,15 @@ public sealed class CurveReferenceTests
         return Fitted(new BasisModel(terms, 2), new FitData([sweep["pressure_kPa"], sweep["temp_C"]], sweep["output_mV"]));
     }
 
-    private static FitResult Thermistor()
+    private static FitResult Thermistor(bool weighted = false)
     {
         var sweep = Sweep("thermistor-sweep.csv");
-        return Fitted(new SteinhartHart(TemperatureScale.Kelvin), new FitData(sweep["r_ohm"], sweep["temp_K"]));
+        var rule = new WeightRule(0.01, 0.0001); // curve_reference.R: ut <- 0.01 + 0.0001 T (K)
+        var data = new FitData(sweep["r_ohm"], sweep["temp_K"])
+        {
+            Uncertainties = weighted ? [.. sweep["temp_K"].Select(rule.UncertaintyOf)] : default,
+        };
+        return Fitted(new SteinhartHart(TemperatureScale.Kelvin), data);
     }
 
     private static FitResult Pt100()
@@ -72,7 +77,7 @@ public sealed class CurveReferenceTests
         return Fitted(CallendarVanDusen.AboveZero, new FitData(sweep["temp_C"], sweep["r_ohm"]));
     }
 
-    public static TheoryData<string> FittedCases() => new() { "line", "weighted", "surface", "thermistor", "pt100" };
+    public static TheoryData<string> FittedCases() => new() { "line", "weighted", "surface", "thermistor", "thermistor_weighted", "pt100" };
 
     private static FitResult Case(string name) => name switch
     {
@@ -80,6 +85,7 @@ public sealed class CurveReferenceTests
         "weighted" => Transmitter(weighted: true),
         "surface" => Surface(),
         "thermistor" => Thermistor(),
+        "thermistor_weighted" => Thermistor(weighted: true), // R: weights T^4 / u(T)^2 on 1/T
         "pt100" => Pt100(),
         _ => Pontius(),
     };

@@ -177,4 +177,16 @@ public sealed class BasisModelTests
         Assert.Equal(SourceLocation.At("s.csv", 3), problem.Location);
         Assert.Contains("1/x needs x != 0", problem.Message, StringComparison.Ordinal);
     }
+
+    [Fact]
+    public void A_term_that_overflows_on_the_natural_scale_is_a_non_finite_fit_not_an_exception()
+    {
+        // (1e40)^10 = 1e400 is beyond double range (IEEE 754 binary64 ends near 1.8e308).
+        var model = Model(1, "1", "x^10");
+        ImmutableArray<double> x = [1e39, 2e39, 5e39, 1e40, 2e40];
+
+        var problem = Assert.Single(LeastSquaresFitter.Fit(model, x, [1.0, 2, 3, 4, 5]).Problems);
+
+        Assert.Equal(ReasonCodes.FitNonFinite.Code, problem.Code);
+    }
 }

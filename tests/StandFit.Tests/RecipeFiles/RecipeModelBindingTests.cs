@@ -267,4 +267,13 @@ public sealed class RecipeModelBindingTests
 
         Assert.Equal(RecipeCodes.MissingKey, problem.Code);
     }
+
+    [Fact]
+    public void A_stimulus_column_that_no_term_uses_is_refused()
+    {
+        var problem = SingleProblem(Recipe("  stimulus: [p, t]", "  type: basis\n  terms: [1, x1, x1^2]"));
+
+        Assert.Equal(RecipeCodes.Contradiction, problem.Code);
+        Assert.Contains("no term uses x2 (stimulus column 2)", problem.Message, StringComparison.Ordinal);
+    }
 }

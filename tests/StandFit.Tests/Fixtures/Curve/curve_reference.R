@@ -5,7 +5,7 @@
 #
 #     Rscript tests/StandFit.Tests/Fixtures/Curve/curve_reference.R
 #
-# It writes, beside itself, the three invented sweeps it fits (transmitter-sweep.csv,
+# It writes, beside itself, the four invented sweeps it fits (transmitter-sweep.csv,
 # surface-sweep.csv, thermistor-sweep.csv, pt100-sweep.csv; seeded, so a rerun gives the same
 # files) and curve-reference.csv, one value per line: case,quantity,index,value (17 digits).
 # The Pontius case reads the NIST StRD file from ../shared/reference/nist-strd/linear.
@@ -18,8 +18,9 @@
 #   calibration formula sqrt(s^2 / (m w0) + se(yhat(x0))^2) / |yhat'(x0)|, which for a straight line
 #   is the textbook (s / |b|) sqrt(1/m + 1/n + (y0 - ybar)^2 / (b^2 Sxx)), computed here in that
 #   closed form for the straight line;
-# - inverse interval: the x where y0 meets the prediction band of the mean of m readings
-#   (uniroot on predict's band limits; Fieller-type).
+# - inverse interval: the x where y0 meets the prediction band of the mean of m readings,
+#   (yhat(x) - y0)^2 = t^2 (s^2 / (m w0) + se(yhat(x))^2) with se from predict(se.fit = TRUE),
+#   solved by uniroot on each side of x0 (Fieller-type; for m = 1 the band is predict's own).
 
 options(digits = 17)
 RNGkind("Mersenne-Twister", "Inversion", "Rejection")
@@ -178,6 +179,12 @@ ch <- coef(sh)
 slope <- function(x) (ch[2] + 3 * ch[3] * log(x)^2) / x
 put("thermistor", "sens", slope(points))
 inverse("thermistor", sh, make, slope, c(1 / 298.15), min(ntc$r_ohm), max(ntc$r_ohm))
+
+# The same thermistor weighted by a reference uncertainty of 0.01 K + 0.0001 T: the response is
+# 1/T, so its uncertainty is u(T) / T^2 (delta method) and its weight T^4 / u(T)^2.
+ut <- 0.01 + 0.0001 * ntc$temp_K
+shw <- lm(I(1 / temp_K) ~ log(r_ohm) + I(log(r_ohm)^3), data = ntc, weights = ntc$temp_K^4 / ut^2)
+fit_summary("thermistor_weighted", shw)
 
 # ---- An invented Pt100 over 0 ... 400 C: Callendar-Van Dusen, trade coefficients by the delta method
 set.seed(20261204)
