@@ -66,7 +66,9 @@ public static class FigureTable
             }
 
             var (value, se) = Linear(fit, gradient);
-            var unit = d.Kind == DerivedKind.SensitivityAt ? recipe.Units.OfPower(1) : recipe.Units.Output;
+            var unit = d.Kind != DerivedKind.SensitivityAt ? recipe.Units.Output
+                : recipe.Units.Output.Length == 0 && recipe.Units.Stimulus.Length == 0 ? ""
+                : $"{recipe.Units.Output}/{recipe.Units.Stimulus}";
             figures[d.Name] = new FigureValue(d.Name, value, se, fit.DegreesOfFreedom, unit);
         }
 
