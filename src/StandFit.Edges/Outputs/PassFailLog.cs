@@ -12,6 +12,7 @@ namespace StandFit.Edges.Outputs;
 /// </summary>
 public sealed class PassFailLog : IAuditSink
 {
+    private static readonly UTF8Encoding Utf8 = new(encoderShouldEmitUTF8Identifier: false);
     private readonly string _folder;
 
     public PassFailLog(string outputFolder) => _folder = Path.Combine(outputFolder, "passfail");
@@ -35,16 +36,17 @@ public sealed class PassFailLog : IAuditSink
             Directory.CreateDirectory(_folder);
             foreach (var day in lines.GroupBy(l => l[..10], StringComparer.Ordinal))
             {
-                var text = new StringBuilder();
-                foreach (var line in day)
+                var path = Path.Combine(_folder, $"passfail-{day.Key}.log");
+                using var stream = new FileStream(path, FileMode.Append, FileAccess.Write, FileShare.Read, 16 * 1024);
+                using (var writer = new StreamWriter(stream, Utf8, 16 * 1024, leaveOpen: true))
                 {
-                    text.Append(line).Append('\n');
+                    foreach (var line in day)
+                    {
+                        writer.Write(line);
+                        writer.Write('\n');
+                    }
                 }
 
-                var path = Path.Combine(_folder, $"passfail-{day.Key}.log");
-                using var stream = new FileStream(path, FileMode.Append, FileAccess.Write, FileShare.Read);
-                var bytes = Encoding.UTF8.GetBytes(text.ToString());
-                stream.Write(bytes);
                 stream.Flush(flushToDisk: true);
             }
         }

@@ -243,21 +243,22 @@ public sealed class PublishJournal
     /// <summary>Writes a batch's commit line (flushed to disk), then takes its keys into the index.</summary>
     public void Commit(JournalBatch batch)
     {
-        Append(JsonSerializer.Serialize(new Entry { Batch = batch.Id, At = batch.At, Files = batch.Files, Units = batch.Units }, Json));
+        Append(new Entry { Batch = batch.Id, At = batch.At, Files = batch.Files, Units = batch.Units });
         Apply(new Entry { Batch = batch.Id, At = batch.At, Files = batch.Files, Units = batch.Units }, liveClaims: null, own: true, committedNow: true);
     }
 
     /// <summary>Writes that a batch's pass/fail lines are on disk.</summary>
     public void MarkLogged(string batchId)
     {
-        Append(JsonSerializer.Serialize(new Entry { Logged = batchId }, Json));
+        Append(new Entry { Logged = batchId });
         _unlogged.RemoveAll(b => b.Id == batchId);
     }
 
     /// <summary>A committed claimed input has been moved on.</summary>
     public void ClaimDone(string claim) => _committedClaims.Remove(claim);
 
-    private void Append(string line)
+    /// <summary>Appends one entry as one line, streamed (a large batch makes no large string), then flushes it to disk.</summary>
+    private void Append(Entry entry)
     {
         if (!Directory.Exists(Path.GetDirectoryName(_folder)))
         {
@@ -265,8 +266,7 @@ public sealed class PublishJournal
         }
 
         Directory.CreateDirectory(_folder);
-        var bytes = Encoding.UTF8.GetBytes(line + "\n");
-        using var stream = new FileStream(_own, FileMode.OpenOrCreate, FileAccess.ReadWrite, FileShare.Read);
+        using var stream = new FileStream(_own, FileMode.OpenOrCreate, FileAccess.ReadWrite, FileShare.Read, 16 * 1024);
         if (stream.Length != _length)
         {
             // A failed append left a partial line, or the file was replaced: continue after its last whole line.
@@ -277,7 +277,8 @@ public sealed class PublishJournal
         stream.Position = _length;
         try
         {
-            stream.Write(bytes);
+            JsonSerializer.Serialize(stream, entry, Json);
+            stream.WriteByte((byte)'\n');
             stream.Flush(flushToDisk: true);
         }
         catch
@@ -286,7 +287,7 @@ public sealed class PublishJournal
             throw;
         }
 
-        _length += bytes.Length;
+        _length = stream.Position;
     }
 
     private static void TryCut(FileStream stream, long length)

@@ -82,6 +82,7 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
                     Held = _held,
                 },
                 LastError = _lastError is null ? null : new LastErrorInfo { At = _lastErrorAt!.Value, Message = _lastError },
+                Memory = new MemoryInfo { WorkingSetBytes = Environment.WorkingSet, ManagedHeapBytes = GC.GetTotalMemory(forceFullCollection: false) },
             };
             return JsonSerializer.Serialize(snapshot, Json) + "\n";
         }
@@ -118,6 +119,18 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
 
         [JsonPropertyName("last_error")]
         public LastErrorInfo? LastError { get; set; }
+
+        [JsonPropertyName("memory")]
+        public MemoryInfo Memory { get; set; } = new();
+    }
+
+    private sealed class MemoryInfo
+    {
+        [JsonPropertyName("working_set_bytes")]
+        public long WorkingSetBytes { get; set; }
+
+        [JsonPropertyName("managed_heap_bytes")]
+        public long ManagedHeapBytes { get; set; }
     }
 
     private sealed class Counters

@@ -59,7 +59,7 @@ public sealed class CrashTests
         var killsDuringWork = 0;
         for (var kill = 0; kill < Kills; kill++)
         {
-            var after = random.Next(1, 500);
+            var after = random.Next(1, 300);
             var remaining = await RunUntilEventThenKillAsync(root.Path, config, after);
             if (remaining > 0)
             {
