@@ -79,6 +79,9 @@ public sealed class Recipe
     /// <summary>Figures computed from the curve at stimulus points (sensitivity, value), which limits can name.</summary>
     public ImmutableArray<DerivedFigure> Derived { get; init; } = [];
 
+    /// <summary>Jackknife and bootstrap error bars (<c>resampling:</c>); null when the recipe asks for none.</summary>
+    public Uncertainty.Resampling.ResamplingPlan? Resampling { get; init; }
+
     /// <summary>The data-quality gates checked before any fit.</summary>
     public SweepExpectations Sweep { get; init; } = SweepExpectations.None;
 

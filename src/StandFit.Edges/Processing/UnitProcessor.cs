@@ -51,7 +51,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
                 return UnitEvaluation.Rejected(file.Name, recipe.Problems[0], identity.IsSuccess ? identity.Value : null);
             }
 
-            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride);
+            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride, file.Sha256);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

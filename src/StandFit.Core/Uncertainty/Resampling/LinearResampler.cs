@@ -1,0 +1,563 @@
+using StandFit.Core.Fitting;
+
+namespace StandFit.Core.Uncertainty.Resampling;
+
+/// <summary>Why a resample could not be fitted.</summary>
+public enum ResampleFailure
+{
+    None,
+
+    /// <summary>The points drawn have no stimulus spread (one set point, or only zero for a model without offset).</summary>
+    DegenerateStimulus,
+
+    /// <summary>The points drawn have too few distinct set points to separate the parameters.</summary>
+    RankDeficient,
+
+    /// <summary>The refit gave a non-finite number.</summary>
+    NonFinite,
+}
+
+/// <summary>Counts of one bootstrap run: resamples asked for, fitted, and failed by cause.</summary>
+public readonly record struct BootstrapCounts(int Requested, int Succeeded, int DegenerateStimulus, int RankDeficient, int NonFinite)
+{
+    public int Failed => DegenerateStimulus + RankDeficient + NonFinite;
+}
+
+/// <summary>
+/// Jackknife and bootstrap refits of a model linear in its parameters, fast enough for every unit.
+/// Everything that does not change between resamples is computed once from the fit: the thin Q of
+/// the Householder QR of the centred, scaled and equilibrated design (the fitter's own basis), the
+/// map M from Q coordinates to the natural parameters (M = T D^-1 P R^-1), and per point the
+/// products q_i q_i' and q_i e_i. A resample that gives point i the weight w_i (its count in a
+/// pairs resample, 0 or 1 in a jackknife) then has the estimates
+/// <code>b* = b_hat + M (Q' W Q)^-1 Q' W e</code>
+/// exactly (e are the fit's residuals, b_hat its refined estimates): only the p x p matrix Q'WQ,
+/// which is the identity for the original sample, is factorised (Cholesky) per resample. It is
+/// never X'X: its condition number measures how unevenly the resample weights the points, not the
+/// design's conditioning, which the QR has already dealt with. For the residual and wild schemes
+/// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. No
+/// allocation happens per resample; the caller provides the output buffers.
+/// </summary>
+public sealed class LinearResampler
+{
+    /// <summary>A Cholesky pivot of Q'WQ at or below this fraction of its diagonal entry is a rank deficiency.</summary>
+    public const double PivotTolerance = 1e-12;
+
+    private readonly int _n;
+    private readonly int _p;
+    private readonly int _f;
+    private readonly int _stride;          // p(p+1)/2 + p
+    private readonly int _triangle;        // p(p+1)/2
+    private readonly double[] _q;          // n x p row-major: thin Q
+    private readonly double[] _pack;       // n x stride: upper triangle of q_i q_i' (row by row), then q_i e_i
+    private readonly double[] _figureMap;  // f x p row-major: F M, figure changes per unit of Q coordinate
+    private readonly double[] _estimates;  // f: figure values on the original data
+    private readonly double[] _stimulus;
+    private readonly double[] _fitted;
+    private readonly double[] _residuals;
+    private readonly double[] _adjusted;   // e_i / sqrt(1 - h_ii), 0 where h_ii = 1
+    private readonly double[] _centred;    // _adjusted minus its mean
+    private readonly bool _intercept;
+
+    /// <param name="fit">The fit on the original data.</param>
+    /// <param name="figureGradients">f x p row-major: figure k = row k . b (a parameter is a unit row; a derived figure its gradient).</param>
+    public LinearResampler(FitResult fit, ReadOnlySpan<double> figureGradients)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
+        _n = fit.Count;
+        _p = fit.ParameterCount;
+        if (figureGradients.Length == 0 || figureGradients.Length % _p != 0)
+        {
+            throw new ArgumentException("Figure gradients are f x p, row-major.", nameof(figureGradients));
+        }
+
+        _f = figureGradients.Length / _p;
+        _triangle = _p * (_p + 1) / 2;
+        _stride = _triangle + _p;
+        _intercept = fit.Model.HasIntercept;
+        _stimulus = fit.Stimulus.ToArray();
+        _fitted = fit.Fitted.ToArray();
+        _residuals = fit.Residuals.ToArray();
+
+        var (q, m) = Factorise(fit);
+        _q = q;
+
+        _figureMap = new double[_f * _p];
+        _estimates = new double[_f];
+        for (var k = 0; k < _f; k++)
+        {
+            var g = figureGradients.Slice(k * _p, _p);
+            var value = 0.0;
+            for (var j = 0; j < _p; j++)
+            {
+                value += g[j] * fit.Estimates[j];
+            }
+
+            _estimates[k] = value;
+            for (var c = 0; c < _p; c++)
+            {
+                var sum = 0.0;
+                for (var j = 0; j < _p; j++)
+                {
+                    sum += g[j] * m[(j * _p) + c];
+                }
+
+                _figureMap[(k * _p) + c] = sum;
+            }
+        }
+
+        _pack = new double[_n * _stride];
+        for (var i = 0; i < _n; i++)
+        {
+            var row = _q.AsSpan(i * _p, _p);
+            var pack = _pack.AsSpan(i * _stride, _stride);
+            var t = 0;
+            for (var j = 0; j < _p; j++)
+            {
+                for (var k = j; k < _p; k++)
+                {
+                    pack[t++] = row[j] * row[k];
+                }
+            }
+
+            for (var j = 0; j < _p; j++)
+            {
+                pack[_triangle + j] = row[j] * _residuals[i];
+            }
+        }
+
+        _adjusted = new double[_n];
+        var mean = 0.0;
+        for (var i = 0; i < _n; i++)
+        {
+            var room = 1.0 - fit.Leverage[i];
+            _adjusted[i] = room > 1e-12 ? _residuals[i] / Math.Sqrt(room) : 0.0;
+            mean += _adjusted[i];
+        }
+
+        mean /= _n;
+        _centred = new double[_n];
+        for (var i = 0; i < _n; i++)
+        {
+            _centred[i] = _adjusted[i] - mean;
+        }
+    }
+
+    public int Points => _n;
+
+    public int Parameters => _p;
+
+    public int Figures => _f;
+
+    /// <summary>The figures on the original data.</summary>
+    public ReadOnlySpan<double> Estimates => _estimates;
+
+    /// <summary>The leverage-adjusted residuals e_i / sqrt(1 - h_ii) (0 for a point of leverage 1), before centring.</summary>
+    public ReadOnlySpan<double> AdjustedResiduals => _adjusted;
+
+    /// <summary>
+    /// The figures with each group left out in turn: <paramref name="groupOf"/> gives each point's
+    /// group (0 .. groups - 1; for delete-one, the point's own index). Writes figure k of leave-out g
+    /// to <c>output[k * groups + g]</c> and the cause of any failure to <c>failures[g]</c>.
+    /// </summary>
+    public void LeaveOut(ReadOnlySpan<int> groupOf, int groups, Span<double> output, Span<ResampleFailure> failures)
+    {
+        if (groupOf.Length != _n || output.Length < _f * groups || failures.Length < groups)
+        {
+            throw new ArgumentException("Leave-out buffers do not match the fit.");
+        }
+
+        Span<double> acc = stackalloc double[_stride];
+        Span<double> work = stackalloc double[(_p * _p) + _p];
+        Span<double> figures = stackalloc double[_f];
+        Span<bool> kept = _n <= 256 ? stackalloc bool[_n] : new bool[_n];
+        for (var g = 0; g < groups; g++)
+        {
+            acc.Clear();
+            for (var i = 0; i < _n; i++)
+            {
+                kept[i] = groupOf[i] != g;
+                if (kept[i])
+                {
+                    Add(acc, i, 1.0);
+                }
+            }
+
+            var failure = Solve(acc, work, figures);
+            if (failure == ResampleFailure.RankDeficient)
+            {
+                failure = Classify(kept);
+            }
+
+            failures[g] = failure;
+            for (var k = 0; k < _f; k++)
+            {
+                output[(k * groups) + g] = failure == ResampleFailure.None ? figures[k] : double.NaN;
+            }
+        }
+    }
+
+    /// <summary>
+    /// Draws <paramref name="resamples"/> bootstrap resamples of the chosen scheme from
+    /// <paramref name="rng"/> and refits each. Figure k of the s-th successful resample goes to
+    /// <c>output[k * resamples + s]</c>; failed resamples are counted, not written. When
+    /// <paramref name="recordIndices"/> is not empty (resamples x n), the drawn point indices (pairs)
+    /// or residual indices (residual) are written there, one resample per row.
+    /// </summary>
+    public BootstrapCounts Bootstrap(BootstrapScheme scheme, int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices = default)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(resamples, 1);
+        if (output.Length < _f * resamples)
+        {
+            throw new ArgumentException("The output buffer holds figures x resamples values.", nameof(output));
+        }
+
+        var record = !recordIndices.IsEmpty;
+        if (record && recordIndices.Length < resamples * _n)
+        {
+            throw new ArgumentException("The index buffer holds resamples x points values.", nameof(recordIndices));
+        }
+
+        return scheme switch
+        {
+            BootstrapScheme.Pairs => Pairs(resamples, ref rng, output, recordIndices),
+            _ => FixedDesign(scheme, resamples, ref rng, output, recordIndices),
+        };
+    }
+
+    private BootstrapCounts Pairs(int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices)
+    {
+        Span<double> acc = stackalloc double[_stride];
+        Span<double> work = stackalloc double[(_p * _p) + _p];
+        Span<double> figures = stackalloc double[_f];
+        Span<int> drawn = _n <= 256 ? stackalloc int[_n] : new int[_n];
+        var bound = (uint)_n;
+        var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
+        var pack = _pack.AsSpan();
+        int good = 0, degenerate = 0, deficient = 0, nonFinite = 0;
+        for (var r = 0; r < resamples; r++)
+        {
+            acc.Clear();
+            for (var j = 0; j < _n; j++)
+            {
+                var i = rng.NextBelow(bound, threshold);
+                drawn[j] = i;
+                var source = pack.Slice(i * _stride, _stride);
+                for (var t = 0; t < acc.Length; t++)
+                {
+                    acc[t] += source[t];
+                }
+            }
+
+            if (!recordIndices.IsEmpty)
+            {
+                drawn.CopyTo(recordIndices.Slice(r * _n, _n));
+            }
+
+            var failure = Solve(acc, work, figures);
+            if (failure == ResampleFailure.RankDeficient)
+            {
+                failure = ClassifyDrawn(drawn);
+            }
+
+            switch (failure)
+            {
+                case ResampleFailure.None:
+                    for (var k = 0; k < _f; k++)
+                    {
+                        output[(k * resamples) + good] = figures[k];
+                    }
+
+                    good++;
+                    break;
+                case ResampleFailure.DegenerateStimulus:
+                    degenerate++;
+                    break;
+                case ResampleFailure.RankDeficient:
+                    deficient++;
+                    break;
+                default:
+                    nonFinite++;
+                    break;
+            }
+        }
+
+        return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite);
+    }
+
+    private BootstrapCounts FixedDesign(BootstrapScheme scheme, int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices)
+    {
+        // b* - b_hat = M Q' e*, so figure k changes by sum_c FM[k, c] (Q' e*)_c.
+        Span<double> acc = stackalloc double[_p];
+        var bound = (uint)_n;
+        var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
+        var q = _q.AsSpan();
+        var good = 0;
+        var nonFinite = 0;
+        const double MammenLow = -0.6180339887498949;   // -(sqrt 5 - 1) / 2
+        const double MammenHigh = 1.618033988749895;    // (sqrt 5 + 1) / 2
+        const double MammenLowChance = 0.7236067977499790; // (sqrt 5 + 1) / (2 sqrt 5)
+        for (var r = 0; r < resamples; r++)
+        {
+            acc.Clear();
+            ulong bits = 0;
+            for (var i = 0; i < _n; i++)
+            {
+                double e;
+                switch (scheme)
+                {
+                    case BootstrapScheme.Residual:
+                        var j = rng.NextBelow(bound, threshold);
+                        if (!recordIndices.IsEmpty)
+                        {
+                            recordIndices[(r * _n) + i] = j;
+                        }
+
+                        e = _centred[j];
+                        break;
+                    case BootstrapScheme.WildRademacher:
+                        if ((i & 63) == 0)
+                        {
+                            bits = rng.NextUInt64();
+                        }
+
+                        e = (bits & 1) == 0 ? _adjusted[i] : -_adjusted[i];
+                        bits >>= 1;
+                        break;
+                    default:
+                        e = _adjusted[i] * (rng.NextDouble() < MammenLowChance ? MammenLow : MammenHigh);
+                        break;
+                }
+
+                var row = q.Slice(i * _p, _p);
+                for (var c = 0; c < _p; c++)
+                {
+                    acc[c] += row[c] * e;
+                }
+            }
+
+            var finite = true;
+            for (var k = 0; k < _f; k++)
+            {
+                var value = _estimates[k];
+                for (var c = 0; c < _p; c++)
+                {
+                    value += _figureMap[(k * _p) + c] * acc[c];
+                }
+
+                finite &= double.IsFinite(value);
+                output[(k * resamples) + good] = value;
+            }
+
+            if (finite)
+            {
+                good++;
+            }
+            else
+            {
+                nonFinite++;
+            }
+        }
+
+        return new BootstrapCounts(resamples, good, 0, 0, nonFinite);
+    }
+
+    private void Add(Span<double> acc, int point, double weight)
+    {
+        var source = _pack.AsSpan(point * _stride, _stride);
+        for (var t = 0; t < acc.Length; t++)
+        {
+            acc[t] += weight * source[t];
+        }
+    }
+
+    /// <summary>Solves (Q'WQ) a = Q'We by Cholesky (acc holds the packed upper triangle, then the right side) and maps a to the figures.</summary>
+    private ResampleFailure Solve(ReadOnlySpan<double> acc, Span<double> work, Span<double> figures)
+    {
+        var p = _p;
+        var l = work[..(p * p)];
+        var a = work.Slice(p * p, p);
+        var t = 0;
+        for (var j = 0; j < p; j++)
+        {
+            for (var k = j; k < p; k++)
+            {
+                l[(k * p) + j] = acc[t++]; // lower triangle holds G
+            }
+        }
+
+        for (var j = 0; j < p; j++)
+        {
+            var diagonal = l[(j * p) + j];
+            var d = diagonal;
+            for (var k = 0; k < j; k++)
+            {
+                d -= l[(j * p) + k] * l[(j * p) + k];
+            }
+
+            if (!(d > PivotTolerance * diagonal))
+            {
+                return ResampleFailure.RankDeficient;
+            }
+
+            var root = Math.Sqrt(d);
+            l[(j * p) + j] = root;
+            for (var i = j + 1; i < p; i++)
+            {
+                var s = l[(i * p) + j];
+                for (var k = 0; k < j; k++)
+                {
+                    s -= l[(i * p) + k] * l[(j * p) + k];
+                }
+
+                l[(i * p) + j] = s / root;
+            }
+        }
+
+        for (var i = 0; i < p; i++)
+        {
+            var s = acc[_triangle + i];
+            for (var k = 0; k < i; k++)
+            {
+                s -= l[(i * p) + k] * a[k];
+            }
+
+            a[i] = s / l[(i * p) + i];
+        }
+
+        for (var i = p - 1; i >= 0; i--)
+        {
+            var s = a[i];
+            for (var k = i + 1; k < p; k++)
+            {
+                s -= l[(k * p) + i] * a[k];
+            }
+
+            a[i] = s / l[(i * p) + i];
+        }
+
+        var finite = true;
+        for (var k = 0; k < _f; k++)
+        {
+            var value = _estimates[k];
+            for (var c = 0; c < p; c++)
+            {
+                value += _figureMap[(k * p) + c] * a[c];
+            }
+
+            figures[k] = value;
+            finite &= double.IsFinite(value);
+        }
+
+        return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
+    }
+
+    private ResampleFailure ClassifyDrawn(ReadOnlySpan<int> drawn)
+    {
+        Span<bool> kept = _n <= 256 ? stackalloc bool[_n] : new bool[_n];
+        kept.Clear();
+        foreach (var i in drawn)
+        {
+            kept[i] = true;
+        }
+
+        return Classify(kept);
+    }
+
+    /// <summary>A singular resample: no spread in the kept stimulus values is degenerate; otherwise too few distinct set points.</summary>
+    private ResampleFailure Classify(ReadOnlySpan<bool> kept)
+    {
+        double min = double.PositiveInfinity, max = double.NegativeInfinity;
+        var any = false;
+        for (var i = 0; i < _n; i++)
+        {
+            if (kept[i])
+            {
+                any = true;
+                min = Math.Min(min, _stimulus[i]);
+                max = Math.Max(max, _stimulus[i]);
+            }
+        }
+
+        var noSpread = !any || (_intercept ? min == max : min == 0 && max == 0);
+        return noSpread ? ResampleFailure.DegenerateStimulus : ResampleFailure.RankDeficient;
+    }
+
+    /// <summary>The thin Q (n x p, row-major) of the fitter's basis and the map M (p x p, row-major) from Q coordinates to natural parameters.</summary>
+    private static (double[] Q, double[] M) Factorise(FitResult fit)
+    {
+        var n = fit.Count;
+        var p = fit.ParameterCount;
+        var model = fit.Model;
+        var scaling = fit.Scaling;
+        var basis = new double[n * p];
+        var row = new double[p];
+        for (var i = 0; i < n; i++)
+        {
+            model.FillBasis((fit.Stimulus[i] - scaling.Centre) / scaling.HalfRange, row);
+            for (var j = 0; j < p; j++)
+            {
+                basis[(j * n) + i] = row[j];
+            }
+        }
+
+        var columnScale = new double[p];
+        for (var j = 0; j < p; j++)
+        {
+            var column = basis.AsSpan(j * n, n);
+            var norm = 0.0;
+            foreach (var v in column)
+            {
+                norm += v * v;
+            }
+
+            norm = Math.Sqrt(norm);
+            columnScale[j] = norm;
+            foreach (ref var v in column)
+            {
+                v /= norm;
+            }
+        }
+
+        var qr = new HouseholderQr(basis, n, p);
+        var thin = qr.ThinQ();
+        var q = new double[n * p];
+        for (var i = 0; i < n; i++)
+        {
+            for (var k = 0; k < p; k++)
+            {
+                q[(i * p) + k] = thin[(k * n) + i];
+            }
+        }
+
+        var natural = new double[p * p];
+        model.FillNaturalMap(scaling, natural);
+        var m = new double[p * p];
+        var x = new double[p];
+        var scaled = new double[p];
+        for (var c = 0; c < p; c++)
+        {
+            Array.Clear(x);
+            x[c] = 1.0;
+            qr.SolveUpper(x);
+            for (var k = 0; k < p; k++)
+            {
+                var j = qr.Permutation(k);
+                scaled[j] = x[k] / columnScale[j];
+            }
+
+            for (var i = 0; i < p; i++)
+            {
+                var sum = 0.0;
+                for (var j = 0; j < p; j++)
+                {
+                    sum += natural[(i * p) + j] * scaled[j];
+                }
+
+                m[(i * p) + c] = sum;
+            }
+        }
+
+        return (q, m);
+    }
+}
