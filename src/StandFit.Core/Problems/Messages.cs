@@ -210,6 +210,14 @@ public static class Messages
     public static string InfluentialPoint(string figure, int line, double stimulus, double shift, string unit, double shiftInSe, int deletions) =>
         F($"delete-one jackknife of {figure}: the point on line {line} (stimulus {Numbers.Format(stimulus)}) moves it most; leaving it out changes {figure} by {Numbers.Format(shift, 4)}{(unit.Length == 0 ? "" : " " + unit)} ({Numbers.Format(shiftInSe, 3)} jackknife SE, of {deletions} points)");
 
+    public static string IntervalWithoutGuarded(string where) => F($"{where} names an 'interval' but the rule is 'simple', which judges the estimate alone; remove 'interval' or use 'rule: guarded'.");
+
+    public static string IntervalWithCoverage(string where, string interval) => F($"{where} judges the {interval} interval and also gives a 'coverage_factor'; a resampling interval has no coverage factor. Remove one of them.");
+
+    public static string ResamplingNeeded(string figure) => F($"the limit on '{figure}' judges a resampling interval, but the recipe has no 'resampling' section; add 'resampling: {{ seed: ..., bootstrap: ..., resamples: ..., max_failed_percent: ... }}'.");
+
+    public static string BootstrapKeyNeeded(string key, string figure, string interval) => F($"'resampling' needs '{key}' written out because the limit on '{figure}' judges its {interval} interval; the ruling must not rest on a default.");
+
     public static string JackknifeUnavailable(string figure, int line) =>
         F($"delete-one jackknife of {figure}: leaving out the point on line {line} leaves a sweep that cannot be fitted, so the jackknife figures and the BCa intervals are not available");
 }

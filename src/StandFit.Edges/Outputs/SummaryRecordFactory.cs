@@ -78,8 +78,11 @@ public static class SummaryRecordFactory
                 Rule = limit.Rule == DecisionRule.Guarded ? "guarded" : "simple",
                 Zone = limit.Zone.ToString().ToLowerInvariant(),
                 Conditional = limit.Conditional,
+                Interval = IntervalSources.Name(limit.Interval),
             });
         }
+
+        ResamplingRecords.Fill(record, unit.Resampling);
 
         if (unit.Parameter("offset") is { } offset)
         {

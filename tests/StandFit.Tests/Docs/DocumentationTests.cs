@@ -121,6 +121,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
             .Concat(Paths("limits.<figure>.", RecipeBinder.LimitKeys))
             .Concat(Paths("gates.", RecipeBinder.GateKeys))
             .Concat(Paths("gates.runs_test.", RecipeBinder.RunsGateKeys))
+            .Concat(Paths("resampling.", RecipeSchema.Root.Child("resampling").ChildNames))
             .ToList();
         var configKeys = Paths("", ConfigLoader.TopKeys)
             .Concat(Paths("folders.", ConfigLoader.FolderKeys))
