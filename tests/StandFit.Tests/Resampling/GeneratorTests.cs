@@ -86,6 +86,35 @@ public sealed class GeneratorTests
     }
 
     [Fact]
+    public void A_pairs_resample_takes_two_indices_per_draw_high_half_first()
+    {
+        // The documented order (docs/uncertainty.md): 32-bit words hi(x1), lo(x1), hi(x2), ... each by
+        // Lemire's method; a call starts with a fresh draw and drops a leftover low half.
+        var a = new Xoshiro256StarStar(2026);
+        var b = new Xoshiro256StarStar(2026);
+        var filled = new int[21];
+        for (var resample = 0; resample < 500; resample++)
+        {
+            a.FillBelow(filled, 21, 4);
+            var expected = new List<int>();
+            while (expected.Count < 21)
+            {
+                var x = b.NextUInt64();
+                foreach (var word in new[] { x >> 32, x & 0xFFFFFFFFUL })
+                {
+                    var product = word * 21;
+                    if (expected.Count < 21 && (uint)product >= 4)
+                    {
+                        expected.Add((int)(product >> 32));
+                    }
+                }
+            }
+
+            Assert.Equal(expected, filled);
+        }
+    }
+
+    [Fact]
     public void Bounded_draws_are_uniform_by_a_chi_square_test()
     {
         // 21 cells, 210000 draws: chi-square on 20 df; 45.3 is its 0.999 quantile (any table of chi-square).

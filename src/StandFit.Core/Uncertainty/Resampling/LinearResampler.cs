@@ -1,3 +1,6 @@
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
+using System.Runtime.Intrinsics;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Uncertainty.Resampling;
@@ -49,7 +52,11 @@ public sealed class LinearResampler
     private readonly int _stride;          // p(p+1)/2 + p
     private readonly int _triangle;        // p(p+1)/2
     private readonly double[] _q;          // n x p row-major: thin Q
-    private readonly double[] _pack;       // n x stride: upper triangle of q_i q_i' (row by row), then q_i e_i
+    private readonly int _strideV;         // stride rounded up to a multiple of 4
+    private readonly double[] _packRows;   // n x strideV: each point's pack, zero padded (vector path, p <= 4)
+    private readonly double[] _qRows;      // n x 4: each point's q_i, zero padded (vector path, p <= 4)
+    private readonly int _nPad;            // n rounded up to a multiple of 4 (one Vector256 of doubles)
+    private readonly double[] _packT;      // stride x nPad: component t of every point's pack (upper triangle of q_i q_i' row by row, then q_i e_i), zero padded
     private readonly double[] _figureMap;  // f x p row-major: F M, figure changes per unit of Q coordinate
     private readonly double[] _estimates;  // f: figure values on the original data
     private readonly double[] _stimulus;
@@ -106,23 +113,39 @@ public sealed class LinearResampler
             }
         }
 
-        _pack = new double[_n * _stride];
+        _nPad = (_n + 3) & ~3;
+        _packT = new double[_stride * _nPad];
         for (var i = 0; i < _n; i++)
         {
             var row = _q.AsSpan(i * _p, _p);
-            var pack = _pack.AsSpan(i * _stride, _stride);
             var t = 0;
             for (var j = 0; j < _p; j++)
             {
                 for (var k = j; k < _p; k++)
                 {
-                    pack[t++] = row[j] * row[k];
+                    _packT[(t++ * _nPad) + i] = row[j] * row[k];
                 }
             }
 
             for (var j = 0; j < _p; j++)
             {
-                pack[_triangle + j] = row[j] * _residuals[i];
+                _packT[((_triangle + j) * _nPad) + i] = row[j] * _residuals[i];
+            }
+        }
+
+        _strideV = (_stride + 3) & ~3;
+        _packRows = new double[_n * _strideV];
+        _qRows = new double[_n * 4];
+        for (var i = 0; i < _n; i++)
+        {
+            for (var t = 0; t < _stride; t++)
+            {
+                _packRows[(i * _strideV) + t] = _packT[(t * _nPad) + i];
+            }
+
+            for (var c = 0; c < Math.Min(_p, 4); c++)
+            {
+                _qRows[(i * 4) + c] = _q[(i * _p) + c];
             }
         }
 
@@ -170,23 +193,19 @@ public sealed class LinearResampler
         Span<double> acc = stackalloc double[_stride];
         Span<double> work = stackalloc double[(_p * _p) + _p];
         Span<double> figures = stackalloc double[_f];
-        Span<bool> kept = _n <= 256 ? stackalloc bool[_n] : new bool[_n];
+        var weights = new double[_nPad];
         for (var g = 0; g < groups; g++)
         {
-            acc.Clear();
             for (var i = 0; i < _n; i++)
             {
-                kept[i] = groupOf[i] != g;
-                if (kept[i])
-                {
-                    Add(acc, i, 1.0);
-                }
+                weights[i] = groupOf[i] != g ? 1.0 : 0.0;
             }
 
+            Accumulate(weights, acc);
             var failure = Solve(acc, work, figures);
             if (failure == ResampleFailure.RankDeficient)
             {
-                failure = Classify(kept);
+                failure = Classify(weights);
             }
 
             failures[g] = failure;
@@ -230,34 +249,37 @@ public sealed class LinearResampler
         Span<double> acc = stackalloc double[_stride];
         Span<double> work = stackalloc double[(_p * _p) + _p];
         Span<double> figures = stackalloc double[_f];
-        Span<int> drawn = _n <= 256 ? stackalloc int[_n] : new int[_n];
+        var drawn = new int[_n];
+        var counts = new double[_nPad];
         var bound = (uint)_n;
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
-        var pack = _pack.AsSpan();
         int good = 0, degenerate = 0, deficient = 0, nonFinite = 0;
+        var vector = _strideV <= 16;
+        Span<double> accV = stackalloc double[_strideV];
         for (var r = 0; r < resamples; r++)
         {
-            acc.Clear();
-            for (var j = 0; j < _n; j++)
-            {
-                var i = rng.NextBelow(bound, threshold);
-                drawn[j] = i;
-                var source = pack.Slice(i * _stride, _stride);
-                for (var t = 0; t < acc.Length; t++)
-                {
-                    acc[t] += source[t];
-                }
-            }
-
+            rng.FillBelow(drawn, bound, threshold);
             if (!recordIndices.IsEmpty)
             {
                 drawn.CopyTo(recordIndices.Slice(r * _n, _n));
             }
 
+            if (vector)
+            {
+                AccumulateDrawn(drawn, accV);
+                accV[.._stride].CopyTo(acc);
+            }
+            else
+            {
+                CountDrawn(drawn, counts);
+                Accumulate(counts, acc);
+            }
+
             var failure = Solve(acc, work, figures);
             if (failure == ResampleFailure.RankDeficient)
             {
-                failure = ClassifyDrawn(drawn);
+                CountDrawn(drawn, counts);
+                failure = Classify(counts);
             }
 
             switch (failure)
@@ -285,13 +307,114 @@ public sealed class LinearResampler
         return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite);
     }
 
+    private static void CountDrawn(int[] drawn, double[] counts)
+    {
+        Array.Clear(counts);
+        foreach (var i in drawn)
+        {
+            counts[i] += 1.0;
+        }
+    }
+
+    /// <summary>
+    /// acc = sum over the drawn points of their packs, four components per vector; even and odd draws
+    /// go to two accumulators (to break the chain of additions), added at the end. A fixed order: the
+    /// same bits on every machine and thread.
+    /// </summary>
+    private void AccumulateDrawn(int[] drawn, Span<double> acc)
+    {
+        ref var rows = ref MemoryMarshal.GetArrayDataReference(_packRows);
+        var sv = _strideV;
+        var vectors = sv / 4;
+        Vector256<double> a0 = default, a1 = default, a2 = default, a3 = default;
+        Vector256<double> b0 = default, b1 = default, b2 = default, b3 = default;
+        var n = drawn.Length;
+        var j = 0;
+        for (; j + 1 < n; j += 2)
+        {
+            ref var ra = ref Unsafe.Add(ref rows, drawn[j] * sv);
+            ref var rb = ref Unsafe.Add(ref rows, drawn[j + 1] * sv);
+            a0 += Vector256.LoadUnsafe(ref ra);
+            b0 += Vector256.LoadUnsafe(ref rb);
+            if (vectors > 1)
+            {
+                a1 += Vector256.LoadUnsafe(ref ra, 4);
+                b1 += Vector256.LoadUnsafe(ref rb, 4);
+                if (vectors > 2)
+                {
+                    a2 += Vector256.LoadUnsafe(ref ra, 8);
+                    b2 += Vector256.LoadUnsafe(ref rb, 8);
+                    if (vectors > 3)
+                    {
+                        a3 += Vector256.LoadUnsafe(ref ra, 12);
+                        b3 += Vector256.LoadUnsafe(ref rb, 12);
+                    }
+                }
+            }
+        }
+
+        if (j < n)
+        {
+            ref var ra = ref Unsafe.Add(ref rows, drawn[j] * sv);
+            a0 += Vector256.LoadUnsafe(ref ra);
+            if (vectors > 1)
+            {
+                a1 += Vector256.LoadUnsafe(ref ra, 4);
+                if (vectors > 2)
+                {
+                    a2 += Vector256.LoadUnsafe(ref ra, 8);
+                    if (vectors > 3)
+                    {
+                        a3 += Vector256.LoadUnsafe(ref ra, 12);
+                    }
+                }
+            }
+        }
+
+        ref var target = ref MemoryMarshal.GetReference(acc);
+        (a0 + b0).StoreUnsafe(ref target);
+        if (vectors > 1)
+        {
+            (a1 + b1).StoreUnsafe(ref target, 4);
+            if (vectors > 2)
+            {
+                (a2 + b2).StoreUnsafe(ref target, 8);
+                if (vectors > 3)
+                {
+                    (a3 + b3).StoreUnsafe(ref target, 12);
+                }
+            }
+        }
+    }
+
+    /// <summary>
+    /// acc[t] = sum_i w_i pack_i[t]: one dot product per component over the zero-padded points, four
+    /// lanes at a time, the lanes added in a fixed order (the same bits on every machine and thread).
+    /// </summary>
+    private void Accumulate(double[] weights, Span<double> acc)
+    {
+        var w = MemoryMarshal.Cast<double, Vector256<double>>(weights.AsSpan());
+        for (var t = 0; t < _stride; t++)
+        {
+            var column = MemoryMarshal.Cast<double, Vector256<double>>(_packT.AsSpan(t * _nPad, _nPad));
+            var sum = Vector256<double>.Zero;
+            for (var v = 0; v < w.Length; v++)
+            {
+                sum += w[v] * column[v];
+            }
+
+            acc[t] = (sum.GetElement(0) + sum.GetElement(1)) + (sum.GetElement(2) + sum.GetElement(3));
+        }
+    }
+
     private BootstrapCounts FixedDesign(BootstrapScheme scheme, int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices)
     {
         // b* - b_hat = M Q' e*, so figure k changes by sum_c FM[k, c] (Q' e*)_c.
-        Span<double> acc = stackalloc double[_p];
+        Span<double> acc = stackalloc double[Math.Max(_p, 4)];
         var bound = (uint)_n;
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
-        var q = _q.AsSpan();
+        var drawn = new int[_n];
+        var errors = new double[_n];
         var good = 0;
         var nonFinite = 0;
         const double MammenLow = -0.6180339887498949;   // -(sqrt 5 - 1) / 2
@@ -299,43 +422,46 @@ public sealed class LinearResampler
         const double MammenLowChance = 0.7236067977499790; // (sqrt 5 + 1) / (2 sqrt 5)
         for (var r = 0; r < resamples; r++)
         {
-            acc.Clear();
-            ulong bits = 0;
-            for (var i = 0; i < _n; i++)
+            switch (scheme)
             {
-                double e;
-                switch (scheme)
-                {
-                    case BootstrapScheme.Residual:
-                        var j = rng.NextBelow(bound, threshold);
-                        if (!recordIndices.IsEmpty)
-                        {
-                            recordIndices[(r * _n) + i] = j;
-                        }
+                case BootstrapScheme.Residual:
+                    rng.FillBelow(drawn, bound, threshold);
+                    if (!recordIndices.IsEmpty)
+                    {
+                        drawn.CopyTo(recordIndices.Slice(r * _n, _n));
+                    }
 
-                        e = _centred[j];
-                        break;
-                    case BootstrapScheme.WildRademacher:
+                    for (var i = 0; i < _n; i++)
+                    {
+                        errors[i] = _centred[drawn[i]];
+                    }
+
+                    break;
+                case BootstrapScheme.WildRademacher:
+                    ulong bits = 0;
+                    for (var i = 0; i < _n; i++)
+                    {
                         if ((i & 63) == 0)
                         {
                             bits = rng.NextUInt64();
                         }
 
-                        e = (bits & 1) == 0 ? _adjusted[i] : -_adjusted[i];
+                        // Bit 1 flips the sign: the residual's sign bit XOR the weight's.
+                        errors[i] = BitConverter.Int64BitsToDouble(BitConverter.DoubleToInt64Bits(_adjusted[i]) ^ (long)((bits & 1) << 63));
                         bits >>= 1;
-                        break;
-                    default:
-                        e = _adjusted[i] * (rng.NextDouble() < MammenLowChance ? MammenLow : MammenHigh);
-                        break;
-                }
+                    }
 
-                var row = q.Slice(i * _p, _p);
-                for (var c = 0; c < _p; c++)
-                {
-                    acc[c] += row[c] * e;
-                }
+                    break;
+                default:
+                    for (var i = 0; i < _n; i++)
+                    {
+                        errors[i] = _adjusted[i] * (rng.NextDouble() < MammenLowChance ? MammenLow : MammenHigh);
+                    }
+
+                    break;
             }
 
+            ProjectErrors(errors, acc);
             var finite = true;
             for (var k = 0; k < _f; k++)
             {
@@ -362,12 +488,37 @@ public sealed class LinearResampler
         return new BootstrapCounts(resamples, good, 0, 0, nonFinite);
     }
 
-    private void Add(Span<double> acc, int point, double weight)
+    /// <summary>acc = Q' e (p values): for p &lt;= 4 one vector per point, even and odd points in two accumulators added at the end; a fixed order.</summary>
+    private void ProjectErrors(double[] errors, Span<double> acc)
     {
-        var source = _pack.AsSpan(point * _stride, _stride);
-        for (var t = 0; t < acc.Length; t++)
+        if (_p <= 4)
         {
-            acc[t] += weight * source[t];
+            ref var rows = ref MemoryMarshal.GetArrayDataReference(_qRows);
+            Vector256<double> a = default, b = default;
+            var i = 0;
+            for (; i + 1 < _n; i += 2)
+            {
+                a += Vector256.LoadUnsafe(ref rows, (nuint)(i * 4)) * Vector256.Create(errors[i]);
+                b += Vector256.LoadUnsafe(ref rows, (nuint)((i + 1) * 4)) * Vector256.Create(errors[i + 1]);
+            }
+
+            if (i < _n)
+            {
+                a += Vector256.LoadUnsafe(ref rows, (nuint)(i * 4)) * Vector256.Create(errors[i]);
+            }
+
+            (a + b).StoreUnsafe(ref MemoryMarshal.GetReference(acc));
+            return;
+        }
+
+        acc.Clear();
+        for (var i = 0; i < _n; i++)
+        {
+            var row = _q.AsSpan(i * _p, _p);
+            for (var c = 0; c < _p; c++)
+            {
+                acc[c] += row[c] * errors[i];
+            }
         }
     }
 
@@ -375,6 +526,11 @@ public sealed class LinearResampler
     private ResampleFailure Solve(ReadOnlySpan<double> acc, Span<double> work, Span<double> figures)
     {
         var p = _p;
+        if (p == 2)
+        {
+            return Solve2(acc, figures);
+        }
+
         var l = work[..(p * p)];
         var a = work.Slice(p * p, p);
         var t = 0;
@@ -452,26 +608,47 @@ public sealed class LinearResampler
         return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 
-    private ResampleFailure ClassifyDrawn(ReadOnlySpan<int> drawn)
+    /// <summary>The 2 x 2 case of <see cref="Solve"/>, written out: the same operations in the same order.</summary>
+    private ResampleFailure Solve2(ReadOnlySpan<double> acc, Span<double> figures)
     {
-        Span<bool> kept = _n <= 256 ? stackalloc bool[_n] : new bool[_n];
-        kept.Clear();
-        foreach (var i in drawn)
+        double g00 = acc[0], g01 = acc[1], g11 = acc[2], c0 = acc[3], c1 = acc[4];
+        if (!(g00 > PivotTolerance * g00))
         {
-            kept[i] = true;
+            return ResampleFailure.RankDeficient;
         }
 
-        return Classify(kept);
+        var l00 = Math.Sqrt(g00);
+        var l10 = g01 / l00;
+        var d1 = g11 - (l10 * l10);
+        if (!(d1 > PivotTolerance * g11))
+        {
+            return ResampleFailure.RankDeficient;
+        }
+
+        var l11 = Math.Sqrt(d1);
+        var a0 = c0 / l00;
+        var a1 = (c1 - (l10 * a0)) / l11;
+        a1 /= l11;
+        a0 = (a0 - (l10 * a1)) / l00;
+        var finite = true;
+        for (var k = 0; k < _f; k++)
+        {
+            var value = _estimates[k] + (_figureMap[k * 2] * a0) + (_figureMap[(k * 2) + 1] * a1);
+            figures[k] = value;
+            finite &= double.IsFinite(value);
+        }
+
+        return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 
     /// <summary>A singular resample: no spread in the kept stimulus values is degenerate; otherwise too few distinct set points.</summary>
-    private ResampleFailure Classify(ReadOnlySpan<bool> kept)
+    private ResampleFailure Classify(ReadOnlySpan<double> weights)
     {
         double min = double.PositiveInfinity, max = double.NegativeInfinity;
         var any = false;
         for (var i = 0; i < _n; i++)
         {
-            if (kept[i])
+            if (weights[i] > 0)
             {
                 any = true;
                 min = Math.Min(min, _stimulus[i]);

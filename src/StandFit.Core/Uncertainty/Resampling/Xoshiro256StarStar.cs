@@ -84,6 +84,54 @@ public struct Xoshiro256StarStar
         }
     }
 
+    /// <summary>
+    /// Fills <paramref name="destination"/> with uniform integers in [0, <paramref name="bound"/>) from
+    /// 32-bit words, two per draw (the high half, then the low half), each by Lemire's multiply-and-reject
+    /// method: word u gives floor(u bound / 2^32) unless the low 32 bits of u bound are below
+    /// <paramref name="threshold"/> (<see cref="RejectionThreshold"/>), when the next word is taken. Each
+    /// call starts with a fresh draw; a low half left over at the end is discarded. This is how a pairs
+    /// resample draws its points.
+    /// </summary>
+    public void FillBelow(Span<int> destination, uint bound, uint threshold)
+    {
+        ulong s0 = _s0, s1 = _s1, s2 = _s2, s3 = _s3;
+        var k = 0;
+        var length = destination.Length;
+        while (k < length)
+        {
+            ulong x;
+            unchecked
+            {
+                x = BitOperations.RotateLeft(s1 * 5, 7) * 9;
+                var t = s1 << 17;
+                s2 ^= s0;
+                s3 ^= s1;
+                s1 ^= s2;
+                s0 ^= s3;
+                s2 ^= t;
+                s3 = BitOperations.RotateLeft(s3, 45);
+            }
+
+            var m = (x >> 32) * bound;
+            if ((uint)m >= threshold)
+            {
+                destination[k++] = (int)(m >> 32);
+                if (k == length)
+                {
+                    break;
+                }
+            }
+
+            m = (x & 0xFFFFFFFFUL) * bound;
+            if ((uint)m >= threshold)
+            {
+                destination[k++] = (int)(m >> 32);
+            }
+        }
+
+        (_s0, _s1, _s2, _s3) = (s0, s1, s2, s3);
+    }
+
     /// <summary>(2^32 - bound) mod bound: draws whose low product word falls below it are rejected.</summary>
     public static uint RejectionThreshold(int bound)
     {
