@@ -143,6 +143,31 @@ public sealed class BootstrapTests
     }
 
     [Fact]
+    public void The_summary_reads_the_same_quantiles_as_a_quantile_of_each_tail_on_its_own()
+    {
+        // The summary puts only the tails in order; its ends must equal Quantile on a fresh copy (boot's norm.inter).
+        var rng = new Xoshiro256StarStar(11);
+        foreach (var b in new[] { 20, 199, 1000, 1001 })
+        {
+            foreach (var coverage in new[] { 0.6827, 0.9, 0.95, 0.99 })
+            {
+                var values = Enumerable.Range(0, b).Select(_ => SimulatedUnits.Gaussian(ref rng) + (0.3 * rng.NextDouble())).ToArray();
+                var acceleration = (rng.NextDouble() - 0.5) * 0.4;
+                var summary = BootstrapIntervals.Summarise(values.ToArray(), 0.1, coverage, acceleration);
+                Assert.Equal(BootstrapIntervals.Quantile(values.ToArray(), (1 - coverage) / 2), summary.Percentile!.Value.Low);
+                Assert.Equal(BootstrapIntervals.Quantile(values.ToArray(), (1 + coverage) / 2), summary.Percentile.Value.High);
+                if (summary.Bca is { } bca)
+                {
+                    var zLow = Normal.InvCDF(0, 1, (1 - coverage) / 2);
+                    var zHigh = Normal.InvCDF(0, 1, (1 + coverage) / 2);
+                    Assert.Equal(BootstrapIntervals.Quantile(values.ToArray(), BootstrapIntervals.BcaLevel(summary.Z0, acceleration, zLow)), bca.Low);
+                    Assert.Equal(BootstrapIntervals.Quantile(values.ToArray(), BootstrapIntervals.BcaLevel(summary.Z0, acceleration, zHigh)), bca.High);
+                }
+            }
+        }
+    }
+
+    [Fact]
     public void Selection_finds_every_order_statistic()
     {
         var rng = new Xoshiro256StarStar(1);

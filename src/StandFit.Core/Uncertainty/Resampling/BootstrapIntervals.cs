@@ -84,21 +84,78 @@ public static class BootstrapIntervals
         var se = Math.Sqrt(ss / (b - 1));
         var lowTail = (1 - coverage) / 2;
         var highTail = (1 + coverage) / 2;
-        var p = new ResampledInterval(Quantile(replicates, lowTail), Quantile(replicates, highTail));
-        var basic = new ResampledInterval((2 * estimate) - p.High, (2 * estimate) - p.Low);
         var z0 = Normal.InvCDF(0, 1, (double)below / b);
-        ResampledInterval? bca = null;
+        double bcaLow = double.NaN, bcaHigh = double.NaN;
         if (double.IsFinite(z0) && double.IsFinite(acceleration))
         {
-            var lo = BcaLevel(z0, acceleration, Normal.InvCDF(0, 1, lowTail));
-            var hi = BcaLevel(z0, acceleration, Normal.InvCDF(0, 1, highTail));
-            if (lo is > 0 and < 1 && hi is > 0 and < 1)
-            {
-                bca = new ResampledInterval(Quantile(replicates, lo), Quantile(replicates, hi));
-            }
+            bcaLow = BcaLevel(z0, acceleration, Normal.InvCDF(0, 1, lowTail));
+            bcaHigh = BcaLevel(z0, acceleration, Normal.InvCDF(0, 1, highTail));
         }
 
+        var withBca = bcaLow is > 0 and < 1 && bcaHigh is > 0 and < 1;
+
+        // Only the tails are ever read: put the order statistics every quantile needs in place
+        // (two selections and two small sorts instead of a selection per order statistic).
+        var lowest = Math.Max(Needed(b, lowTail), withBca ? Needed(b, bcaLow) : 0);
+        var highest = Math.Min(Needed(b, highTail) - 2, withBca ? Needed(b, bcaHigh) - 2 : int.MaxValue);
+        SortTails(replicates, Math.Min(lowest, b), Math.Max(highest, 0));
+        var p = new ResampledInterval(QuantileOfSorted(replicates, lowTail), QuantileOfSorted(replicates, highTail));
+        var basic = new ResampledInterval((2 * estimate) - p.High, (2 * estimate) - p.Low);
+        ResampledInterval? bca = withBca ? new ResampledInterval(QuantileOfSorted(replicates, bcaLow), QuantileOfSorted(replicates, bcaHigh)) : null;
+
         return new BootstrapSummary(estimate, mean, mean - estimate, se, z0, acceleration, coverage, b, p, basic, bca);
+    }
+
+    /// <summary>The number of smallest order statistics the alpha quantile reads: k + 1 with k = floor((B + 1) alpha), within 1..B.</summary>
+    private static int Needed(int b, double alpha) => Math.Clamp((int)Math.Truncate((b + 1) * alpha) + 1, 1, b);
+
+    /// <summary>
+    /// Puts the <paramref name="low"/> smallest values, sorted, at the front and the values from
+    /// position <paramref name="high"/> (0-based) on, sorted, at the back; the middle stays unordered.
+    /// Falls back to a full sort when the tails meet.
+    /// </summary>
+    private static void SortTails(Span<double> values, int low, int high)
+    {
+        if (low >= high)
+        {
+            values.Sort();
+            return;
+        }
+
+        OrderStatistics.Select(values, low);
+        values[..low].Sort();
+        var upper = values[low..];
+        OrderStatistics.Select(upper, high - low + 1);
+        upper[(high - low)..].Sort();
+    }
+
+    /// <summary>The quantile of <see cref="Quantile"/>, reading order statistics by position from values whose tails are in sorted place.</summary>
+    private static double QuantileOfSorted(ReadOnlySpan<double> values, double alpha)
+    {
+        var r = values.Length;
+        var rk = (r + 1) * alpha;
+        var k = (int)Math.Truncate(rk);
+        if (k <= 0)
+        {
+            return values[0];
+        }
+
+        if (k >= r)
+        {
+            return values[r - 1];
+        }
+
+        var tk = values[k - 1];
+        if (k == rk)
+        {
+            return tk;
+        }
+
+        var tk1 = values[k];
+        var z = Normal.InvCDF(0, 1, alpha);
+        var zk = Normal.InvCDF(0, 1, (double)k / (r + 1));
+        var zk1 = Normal.InvCDF(0, 1, (double)(k + 1) / (r + 1));
+        return tk + ((z - zk) / (zk1 - zk) * (tk1 - tk));
     }
 
     /// <summary>The BCa tail level Phi(z0 + (z0 + z) / (1 - a (z0 + z))) for the normal quantile z of a tail.</summary>
