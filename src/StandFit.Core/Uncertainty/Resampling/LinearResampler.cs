@@ -1,3 +1,4 @@
+using System.Numerics;
 using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using System.Runtime.Intrinsics;
@@ -258,21 +259,21 @@ public sealed class LinearResampler
         Span<double> accV = stackalloc double[_strideV];
         for (var r = 0; r < resamples; r++)
         {
-            rng.FillBelow(drawn, bound, threshold);
-            if (!recordIndices.IsEmpty)
-            {
-                drawn.CopyTo(recordIndices.Slice(r * _n, _n));
-            }
-
             if (vector)
             {
-                AccumulateDrawn(drawn, accV);
+                DrawAndAccumulate(ref rng, drawn, threshold, accV);
                 accV[.._stride].CopyTo(acc);
             }
             else
             {
+                rng.FillBelow(drawn, bound, threshold);
                 CountDrawn(drawn, counts);
                 Accumulate(counts, acc);
+            }
+
+            if (!recordIndices.IsEmpty)
+            {
+                drawn.CopyTo(recordIndices.Slice(r * _n, _n));
             }
 
             var failure = Solve(acc, work, figures);
@@ -313,6 +314,109 @@ public sealed class LinearResampler
         foreach (var i in drawn)
         {
             counts[i] += 1.0;
+        }
+    }
+
+    /// <summary>
+    /// <see cref="Xoshiro256StarStar.FillBelow"/> and <see cref="AccumulateDrawn"/> in one loop (the
+    /// same draws, the same sums in the same order): each index is drawn and its pack added at once,
+    /// so the generator's and the additions' dependency chains overlap.
+    /// </summary>
+    private void DrawAndAccumulate(ref Xoshiro256StarStar rng, int[] drawn, uint threshold, Span<double> acc)
+    {
+        if (_strideV > 8)
+        {
+            rng.FillBelow(drawn, (uint)_n, threshold);
+            AccumulateDrawn(drawn, acc);
+            return;
+        }
+
+        rng.Save(out var s0, out var s1, out var s2, out var s3);
+        ref var rows = ref MemoryMarshal.GetArrayDataReference(_packRows);
+        ref var indices = ref MemoryMarshal.GetArrayDataReference(drawn);
+        var bound = (ulong)_n;
+        var sv = _strideV;
+        var two = sv == 8;
+        Vector256<double> a0 = default, a1 = default, b0 = default, b1 = default;
+        var k = 0;
+        var length = drawn.Length;
+        while (k < length)
+        {
+            ulong x;
+            unchecked
+            {
+                x = BitOperations.RotateLeft(s1 * 5, 7) * 9;
+                var t = s1 << 17;
+                s2 ^= s0;
+                s3 ^= s1;
+                s1 ^= s2;
+                s0 ^= s3;
+                s2 ^= t;
+                s3 = BitOperations.RotateLeft(s3, 45);
+            }
+
+            var m = (x >> 32) * bound;
+            if ((uint)m >= threshold)
+            {
+                var i = (int)(m >> 32);
+                Unsafe.Add(ref indices, k) = i;
+                ref var row = ref Unsafe.Add(ref rows, i * sv);
+                if ((k & 1) == 0)
+                {
+                    a0 += Vector256.LoadUnsafe(ref row);
+                    if (two)
+                    {
+                        a1 += Vector256.LoadUnsafe(ref row, 4);
+                    }
+                }
+                else
+                {
+                    b0 += Vector256.LoadUnsafe(ref row);
+                    if (two)
+                    {
+                        b1 += Vector256.LoadUnsafe(ref row, 4);
+                    }
+                }
+
+                if (++k == length)
+                {
+                    break;
+                }
+            }
+
+            m = (x & 0xFFFFFFFFUL) * bound;
+            if ((uint)m >= threshold)
+            {
+                var i = (int)(m >> 32);
+                Unsafe.Add(ref indices, k) = i;
+                ref var row = ref Unsafe.Add(ref rows, i * sv);
+                if ((k & 1) == 0)
+                {
+                    a0 += Vector256.LoadUnsafe(ref row);
+                    if (two)
+                    {
+                        a1 += Vector256.LoadUnsafe(ref row, 4);
+                    }
+                }
+                else
+                {
+                    b0 += Vector256.LoadUnsafe(ref row);
+                    if (two)
+                    {
+                        b1 += Vector256.LoadUnsafe(ref row, 4);
+                    }
+                }
+
+                k++;
+            }
+        }
+
+        rng.Restore(s0, s1, s2, s3);
+        ref var target = ref MemoryMarshal.GetReference(acc);
+        (a0 + b0).StoreUnsafe(ref target);
+        if (two)
+        {
+            (a1 + b1).StoreUnsafe(ref target, 4);
         }
     }
 
@@ -608,7 +712,7 @@ public sealed class LinearResampler
         return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 
-    /// <summary>The 2 x 2 case of <see cref="Solve"/>, written out: the same operations in the same order.</summary>
+    /// <summary>The 2 x 2 case of <see cref="Solve"/>, written out as an LDL' factorisation (the same pivots as Cholesky, no square roots).</summary>
     private ResampleFailure Solve2(ReadOnlySpan<double> acc, Span<double> figures)
     {
         double g00 = acc[0], g01 = acc[1], g11 = acc[2], c0 = acc[3], c1 = acc[4];
@@ -617,19 +721,17 @@ public sealed class LinearResampler
             return ResampleFailure.RankDeficient;
         }
 
-        var l00 = Math.Sqrt(g00);
-        var l10 = g01 / l00;
-        var d1 = g11 - (l10 * l10);
+        // LDL': the Cholesky pivots without square roots, one reciprocal and one division.
+        var inverse0 = 1.0 / g00;
+        var l10 = g01 * inverse0;
+        var d1 = g11 - (l10 * g01);
         if (!(d1 > PivotTolerance * g11))
         {
             return ResampleFailure.RankDeficient;
         }
 
-        var l11 = Math.Sqrt(d1);
-        var a0 = c0 / l00;
-        var a1 = (c1 - (l10 * a0)) / l11;
-        a1 /= l11;
-        a0 = (a0 - (l10 * a1)) / l00;
+        var a1 = (c1 - (l10 * c0)) / d1;
+        var a0 = (c0 - (g01 * a1)) * inverse0;
         var finite = true;
         for (var k = 0; k < _f; k++)
         {

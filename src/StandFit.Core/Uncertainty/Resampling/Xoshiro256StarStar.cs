@@ -132,6 +132,11 @@ public struct Xoshiro256StarStar
         (_s0, _s1, _s2, _s3) = (s0, s1, s2, s3);
     }
 
+    /// <summary>The state, for a hot loop that inlines the generator (it must give the same draws as <see cref="NextUInt64"/>).</summary>
+    internal readonly void Save(out ulong s0, out ulong s1, out ulong s2, out ulong s3) => (s0, s1, s2, s3) = (_s0, _s1, _s2, _s3);
+
+    internal void Restore(ulong s0, ulong s1, ulong s2, ulong s3) => (_s0, _s1, _s2, _s3) = (s0, s1, s2, s3);
+
     /// <summary>(2^32 - bound) mod bound: draws whose low product word falls below it are rejected.</summary>
     public static uint RejectionThreshold(int bound)
     {
