@@ -66,9 +66,7 @@ public static class FigureTable
             }
 
             var (value, se) = Linear(fit, gradient);
-            var unit = d.Kind != DerivedKind.SensitivityAt ? recipe.Units.Output
-                : recipe.Units.Output.Length == 0 && recipe.Units.Stimulus.Length == 0 ? ""
-                : $"{recipe.Units.Output}/{recipe.Units.Stimulus}";
+            var unit = d.Kind != DerivedKind.SensitivityAt ? recipe.Units.Output : recipe.UnitOfSensitivity();
             figures[d.Name] = new FigureValue(d.Name, value, se, fit.DegreesOfFreedom, unit);
         }
 

@@ -54,6 +54,9 @@ public sealed class UnitEvaluation
 
     public Verdict Verdict { get; }
 
+    /// <summary>Jackknife and bootstrap figures, when the recipe asks for them.</summary>
+    public Uncertainty.Resampling.ResamplingResult? Resampling { get; private init; }
+
     /// <summary>Why the unit was rejected, when it was.</summary>
     public Problem? Problem { get; }
 
@@ -61,8 +64,8 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null);
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Uncertainty.Resampling.ResamplingResult? resampling = null) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null) { Resampling = resampling };
 
     /// <summary>A unit whose sweep failed a data-quality gate: not fitted, ruled retest.</summary>
     internal static UnitEvaluation Screened(string sourceName, Recipe recipe, Sweep sweep, Verdict verdict) =>

@@ -6,6 +6,7 @@ using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
 using StandFit.Core.Screening;
 using StandFit.Core.Uncertainty;
+using StandFit.Core.Uncertainty.Resampling;
 
 namespace StandFit.Core.Evaluation;
 
@@ -16,7 +17,11 @@ namespace StandFit.Core.Evaluation;
 /// </summary>
 public static class UnitEvaluator
 {
-    public static UnitEvaluation Evaluate(SweepTable table, Recipe recipe, LinearModel? modelOverride = null)
+    /// <param name="table">The parsed sweep file.</param>
+    /// <param name="recipe">The recipe that judges it.</param>
+    /// <param name="modelOverride">A model to fit instead of the recipe's.</param>
+    /// <param name="sourceSha256">SHA-256 of the file's bytes (lower-case hex): with the serial and the recipe's seed it seeds the unit's resampling stream.</param>
+    public static UnitEvaluation Evaluate(SweepTable table, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null)
     {
         var assembled = SweepAssembler.Assemble(table, recipe.Columns, recipe.Format);
         if (!assembled.IsSuccess)
@@ -25,10 +30,10 @@ public static class UnitEvaluator
             return UnitEvaluation.Rejected(table.SourceName, assembled.Problems[0], identity.IsSuccess ? identity.Value : null, recipe);
         }
 
-        return Evaluate(table.SourceName, assembled.Value, recipe, modelOverride);
+        return Evaluate(table.SourceName, assembled.Value, recipe, modelOverride, sourceSha256);
     }
 
-    public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null)
+    public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null)
     {
         // A sweep no fit can use is rejected; a sweep that fails a data-quality gate is ruled retest.
         var model = modelOverride ?? recipe.Model;
@@ -69,6 +74,14 @@ public static class UnitEvaluator
 
         var figures = FigureTable.Compute(fit, parameters, derived, runs, recipe);
         var findings = new List<Finding>();
+        ResamplingResult? resampling = null;
+        if (recipe.Resampling is { } plan)
+        {
+            resampling = ResamplingAnalysis.Run(fit, sweep, recipe, plan, StreamSeed.Derive(plan.Seed, sweep.Identity.Serial, sourceSha256 ?? ""));
+            figures = resampling.Attach(figures);
+            findings.AddRange(resampling.Findings);
+        }
+
         foreach (var limit in recipe.Limits)
         {
             if (!figures.TryGetValue(limit.Figure, out var figure))
@@ -86,6 +99,6 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings));
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling);
     }
 }

@@ -36,4 +36,7 @@ public sealed record FigureLimit
 
     /// <summary>The guard band of a guarded limit; null means the recipe's confidence level.</summary>
     public GuardBand? Guard { get; init; }
+
+    /// <summary>The interval a guarded limit judges: the t interval (default) or one from resampling.</summary>
+    public IntervalSource Interval { get; init; } = IntervalSource.T;
 }

@@ -7,6 +7,9 @@ namespace StandFit.Core.Judging;
 public sealed record FigureValue(string Name, double Value, double? StandardUncertainty, int? DegreesOfFreedom, string Unit)
 {
     public bool HasUncertainty => StandardUncertainty is not null;
+
+    /// <summary>Intervals from resampling (jackknife, bootstrap) that a guarded limit can use instead of the t interval.</summary>
+    public System.Collections.Immutable.ImmutableArray<FigureInterval> Intervals { get; init; } = [];
 }
 
 /// <summary>What a limit decided, kept with the finding for the audit trail and the summary table.</summary>
@@ -20,4 +23,8 @@ public sealed record LimitResult(
     double? Max,
     DecisionRule Rule,
     LimitZone Zone,
-    string? Conditional);
+    string? Conditional)
+{
+    /// <summary>The interval the limit judged (t unless the limit uses a resampling interval).</summary>
+    public IntervalSource Interval { get; init; } = IntervalSource.T;
+}

@@ -244,4 +244,53 @@ public static class Messages
             : F($"runs test in stimulus order: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is at or above the floor {Numbers.Format(floor)}");
 
     public static string RunsNotApplicable(int plus, int minus) => F($"runs test not applicable: {plus} positive and {minus} negative residuals");
+
+    // ---- resampling --------------------------------------------------------------------------
+    public static string LimitIntervalMissing(string figure, string interval) => F($"the limit on '{figure}' cannot decide: its {interval} interval could not be formed for this unit (too few successful resamples, or a jackknife deletion that cannot be fitted)");
+
+    public static string LimitDecisionOnInterval(Judging.LimitResult r, string unit, string basis)
+    {
+        var digits = 5;
+        foreach (var bound in new[] { r.Min, r.Max })
+        {
+            if (bound is { } edge)
+            {
+                digits = Math.Max(digits, Math.Max(Numbers.DigitsToTellApart(r.Low, edge), Numbers.DigitsToTellApart(r.High, edge)));
+                digits = Math.Max(digits, Numbers.DigitsToTellApart(r.Value, edge));
+            }
+        }
+
+        string N(double v) => Numbers.Format(v, digits);
+        var u = unit.Length == 0 ? "" : " " + unit;
+        var limits = F($"[{(r.Min is { } a ? N(a) : "-inf")}, {(r.Max is { } b ? N(b) : "+inf")}]");
+        var subject = F($"{r.Figure} {N(r.Value)}{u}, interval [{N(r.Low)}, {N(r.High)}]");
+        return r.Zone switch
+        {
+            Judging.LimitZone.Above => F($"{subject} lies above the upper limit {N(r.Max!.Value)} (guarded, {basis})"),
+            Judging.LimitZone.Below => F($"{subject} lies below the lower limit {N(r.Min!.Value)} (guarded, {basis})"),
+            Judging.LimitZone.Straddles => F($"{subject} straddles a limit of {limits} (guarded, {basis}): undecided, conditional {r.Conditional}"),
+            _ => F($"{subject} lies inside the limits {limits} (guarded, {basis})"),
+        };
+    }
+
+    public static string IntervalBasisBootstrap(string kind, string scheme, int succeeded, double coverage) => F($"bootstrap {kind}, {scheme} resampling, {succeeded} resamples, {Numbers.Format(coverage * 100, 6)} %");
+
+    public static string IntervalBasisJackknife(string groups, int deletions, double coverage) => F($"jackknife {groups}, {deletions} deletions, t({Numbers.Format(coverage * 100, 6)} %, {deletions - 1} df) SE");
+
+    public static string TooManyFailedResamples(int failed, int requested, double percent, double maxPercent, int degenerate, int rankDeficient, int nonFinite) =>
+        F($"{failed} of {requested} bootstrap resamples could not be fitted ({Numbers.Format(percent, 4)} %, over the recipe's max_failed_percent {Numbers.Format(maxPercent)}): {degenerate} with no stimulus spread, {rankDeficient} rank deficient, {nonFinite} non-finite; the bootstrap figures rest on too few resamples. Test the unit again, or use a sweep with more points per set point");
+
+    public static string InfluentialPoint(string figure, int line, double stimulus, double shift, string unit, double shiftInSe, int deletions) =>
+        F($"delete-one jackknife of {figure}: the point on line {line} (stimulus {Numbers.Format(stimulus)}) moves it most; leaving it out changes {figure} by {Numbers.Format(shift, 4)}{(unit.Length == 0 ? "" : " " + unit)} ({Numbers.Format(shiftInSe, 3)} jackknife SE, of {deletions} points)");
+
+    public static string IntervalWithoutGuarded(string where) => F($"{where} names an 'interval' but the rule is 'simple', which judges the estimate alone; remove 'interval' or use 'rule: guarded'.");
+
+    public static string IntervalWithCoverage(string where, string interval) => F($"{where} judges the {interval} interval and also gives a 'coverage_factor'; a resampling interval has no coverage factor. Remove one of them.");
+
+    public static string ResamplingNeeded(string figure) => F($"the limit on '{figure}' judges a resampling interval, but the recipe has no 'resampling' section; add 'resampling: {{ seed: ..., bootstrap: ..., resamples: ..., max_failed_percent: ... }}'.");
+
+    public static string BootstrapKeyNeeded(string key, string figure, string interval) => F($"'resampling' needs '{key}' written out because the limit on '{figure}' judges its {interval} interval; the ruling must not rest on a default.");
+
+    public static string JackknifeUnavailable(string figure, int line) =>
+        F($"delete-one jackknife of {figure}: leaving out the point on line {line} leaves a sweep that cannot be fitted, so the jackknife figures and the BCa intervals are not available");
 }

@@ -84,6 +84,11 @@ public static class ReasonCodes
     public static readonly ReasonCode RunsNotApplicable = new("residuals.runs_not_applicable", ReasonKind.Pass, "The residuals have too few signs of each kind for a runs test (for example an exact fit); the gate does not judge.");
     public static readonly ReasonCode RunsStructure = new("residuals.runs_structure", ReasonKind.Fail, "Too few (or too many) runs of residual signs in stimulus order: the model does not describe the unit.");
 
+    // Resampling (jackknife and bootstrap).
+    public static readonly ReasonCode ResamplingTooManyFailures = new("resampling.too_many_failures", ReasonKind.Retest, "More bootstrap resamples could not be fitted (no stimulus spread, rank deficient) than the recipe's 'resampling.max_failed_percent' allows.");
+    public static readonly ReasonCode ResamplingInfluentialPoint = new("resampling.influential_point", ReasonKind.Pass, "The delete-one jackknife names the point whose deletion moves the gain most, with its line in the sweep file.");
+    public static readonly ReasonCode ResamplingJackknifeUnavailable = new("resampling.jackknife_unavailable", ReasonKind.Pass, "A delete-one deletion leaves a sweep that cannot be fitted: no jackknife figures and no BCa intervals for this unit (a limit that needs them is not evaluated).");
+
     public static ImmutableArray<ReasonCode> All { get; } =
     [
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
@@ -95,6 +100,7 @@ public static class ReasonCodes
         InternalError,
         LimitWithin, LimitAbove, LimitBelow, LimitStraddles, LimitNotEvaluated,
         RunsOk, RunsNotApplicable, RunsStructure,
+        ResamplingTooManyFailures, ResamplingInfluentialPoint, ResamplingJackknifeUnavailable,
     ];
 
     /// <summary>The registry entry of a concrete code (<c>gain.above_limit</c> finds <c>{figure}.above_limit</c>), or null.</summary>

@@ -138,6 +138,9 @@ public sealed class Recipe
     /// <summary>Figures computed from the curve at stimulus points (sensitivity, value), which limits can name.</summary>
     public ImmutableArray<DerivedFigure> Derived { get; init; } = [];
 
+    /// <summary>Jackknife and bootstrap error bars (<c>resampling:</c>); null when the recipe asks for none.</summary>
+    public Uncertainty.Resampling.ResamplingPlan? Resampling { get; init; }
+
     /// <summary>The data-quality gates checked before any fit.</summary>
     public SweepExpectations Sweep { get; init; } = SweepExpectations.None;
 
@@ -163,6 +166,10 @@ public sealed class Recipe
     public bool IsWeighted => Weights is not null || Columns.Uncertainty is not null;
 
     /// <summary>The unit of a parameter, or of a derived quantity, of the model ("" when unknown).</summary>
+    /// <summary>The unit of a sensitivity d output / d stimulus ("mA/kPa"), or "" when the recipe gives no units.</summary>
+    public string UnitOfSensitivity() =>
+        Units.Output.Length == 0 && Units.Stimulus.Length == 0 ? "" : $"{Units.Output}/{Units.Stimulus}";
+
     public string UnitOf(string parameter)
     {
         var index = Model.ParameterNames.IndexOf(parameter);

@@ -54,6 +54,11 @@ public sealed class LimitResultRecord
     /// <summary>For a straddling interval: pass when the estimate itself is inside the limits, fail otherwise; null elsewhere.</summary>
     [JsonPropertyName("conditional")]
     public string? Conditional { get; set; }
+
+    /// <summary>The interval judged: t, jackknife, bootstrap-percentile, bootstrap-basic or bootstrap-bca.</summary>
+    [JsonPropertyName("interval")]
+    [ParquetRequired]
+    public string Interval { get; set; } = "t";
 }
 
 /// <summary>One parameter of a unit's fit, as a struct inside the summary row's <c>parameters</c> list.</summary>
@@ -110,7 +115,7 @@ public sealed class DerivedRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 4;
+    public const int CurrentSchemaVersion = 5;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -255,6 +260,27 @@ public sealed class SummaryRecord
     /// <summary>Every limit's decision, in the order of the reasons (most severe first): the audit trail of the ruling.</summary>
     [JsonPropertyName("limit_results")]
     public List<LimitResultRecord> LimitResults { get; set; } = [];
+
+    /// <summary>The recipe's resampling seed (null when the recipe has no resampling).</summary>
+    [JsonPropertyName("resampling_seed")]
+    public long? ResamplingSeed { get; set; }
+
+    /// <summary>The unit's own stream seed, 16 hex digits, derived from the recipe's seed, the serial and the file's SHA-256.</summary>
+    [JsonPropertyName("resampling_stream")]
+    public string? ResamplingStream { get; set; }
+
+    [JsonPropertyName("resampling_scheme")]
+    public string? ResamplingScheme { get; set; }
+
+    [JsonPropertyName("resampling_resamples")]
+    public int? ResamplingResamples { get; set; }
+
+    [JsonPropertyName("resampling_failed")]
+    public int? ResamplingFailed { get; set; }
+
+    /// <summary>Jackknife and bootstrap figures: one element per figure and method.</summary>
+    [JsonPropertyName("resampling")]
+    public List<ResamplingRecord> Resampling { get; set; } = [];
 
     [JsonPropertyName("processed_at")]
     [ParquetTimestamp(ParquetTimestampResolution.Milliseconds, useLogicalTimestamp: true, isAdjustedToUTC: true)]

@@ -79,6 +79,7 @@ public static class SummaryRecordFactory
                 Rule = limit.Rule == DecisionRule.Guarded ? "guarded" : "simple",
                 Zone = limit.Zone.ToString().ToLowerInvariant(),
                 Conditional = limit.Conditional,
+                Interval = IntervalSources.Name(limit.Interval),
             });
         }
 
@@ -92,6 +93,8 @@ public static class SummaryRecordFactory
                 StandardError = d.StandardError,
             });
         }
+
+        ResamplingRecords.Fill(record, unit.Resampling);
 
         if (unit.Parameter("offset") is { } offset)
         {

@@ -63,7 +63,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
                 return UnitEvaluation.Rejected(file.Name, mismatch, identity.IsSuccess ? identity.Value : null, recipe.Value);
             }
 
-            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride);
+            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride, file.Sha256);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

@@ -16,7 +16,7 @@ namespace StandFit.Edges.RecipeFiles;
 /// core's immutable <see cref="Recipe"/>, reporting every problem of the file at once.
 /// docs/recipes.md documents each key.
 /// </summary>
-public static class RecipeBinder
+public static partial class RecipeBinder
 {
     public static readonly ImmutableArray<string> TopKeys = RecipeSchema.Root.ChildNames;
     public static readonly ImmutableArray<string> ColumnKeys = RecipeSchema.Root.Child("columns").ChildNames;
@@ -82,6 +82,7 @@ public static class RecipeBinder
         var derived = ReadDerived(top, model);
         var decision = ReadDecision(top);
         var limits = ReadLimits(top, model, derived, decision);
+        var resampling = ReadResampling(top, columns, limits);
         var sweep = ReadSweep(top, columns);
         var runsGate = ReadGates(top);
 
@@ -110,6 +111,7 @@ public static class RecipeBinder
             FilePatterns = [.. patterns.Select(p => p.Text)],
             Extends = extends,
             IsFamily = family,
+            Resampling = resampling,
         };
     }
 
@@ -456,7 +458,7 @@ public static class RecipeBinder
         return level;
     }
 
-    private sealed record Decision(DecisionRule Rule, GuardBand? Guard);
+    private sealed record Decision(DecisionRule Rule, GuardBand? Guard, IntervalSource? Interval = null);
 
     private static Decision? ReadDecision(MapReader top)
     {
@@ -468,7 +470,8 @@ public static class RecipeBinder
 
         var rule = ReadRule(section, required: true);
         var guard = ReadCoverage(section, rule);
-        return rule is null ? null : new Decision(rule.Value, guard);
+        var interval = ReadInterval(section, rule);
+        return rule is null ? null : new Decision(rule.Value, guard, interval);
     }
 
     private static DecisionRule? ReadRule(MapReader section, bool required)
@@ -595,6 +598,7 @@ public static class RecipeBinder
             var ownRule = ReadRule(bounds, required: false);
             var rule = ownRule ?? decision?.Rule;
             var guard = ReadCoverage(bounds, rule) ?? (ownRule is null ? decision?.Guard : null);
+            var interval = ReadInterval(bounds, rule) ?? (ownRule is null ? decision?.Interval : null) ?? IntervalSource.T;
             var hasMin = bounds.Has("min");
             var hasMax = bounds.Has("max");
             if (!hasMin && !hasMax)
@@ -622,7 +626,7 @@ public static class RecipeBinder
 
             if (known && figures is not null)
             {
-                builder.Add(new FigureLimit(figure, min, max) { Rule = rule.Value, Guard = rule == DecisionRule.Guarded ? guard : null });
+                builder.Add(new FigureLimit(figure, min, max) { Rule = rule.Value, Guard = rule == DecisionRule.Guarded ? guard : null, Interval = rule == DecisionRule.Guarded ? interval : IntervalSource.T });
             }
         }
 

@@ -51,10 +51,15 @@ public static class RecipeSchema
     public static readonly ImmutableArray<string> DecimalSeparators = ["point", "comma"];
     public static readonly ImmutableArray<string> Rules = ["guarded", "simple"];
     public static readonly ImmutableArray<string> LegNames = ["up", "down"];
+    public static readonly ImmutableArray<string> IntervalNames = ["t", "jackknife", "bootstrap-percentile", "bootstrap-basic", "bootstrap-bca"];
+    public static readonly ImmutableArray<string> BootstrapSchemes = ["pairs", "residual", "wild-rademacher", "wild-mammen"];
+    public static readonly ImmutableArray<string> JackknifeKinds = ["delete-one", "delete-leg", "delete-cycle"];
 
     private static readonly KeySpec RuleKey = new("rule", ValueKind.Text, "Decision rule: 'guarded' (guard band from the expanded uncertainty; undecided zone ruled retest) or 'simple' (the estimate inside the limits passes).") { Choices = Rules };
 
     private static readonly KeySpec CoverageFactorKey = new("coverage_factor", ValueKind.Number, "Guarded limits only: the guard band is U = k u with this coverage factor k, instead of the t-based interval at the recipe's confidence.") { Minimum = 1, Maximum = 10 };
+
+    private static readonly KeySpec IntervalKey = new("interval", ValueKind.Text, "Guarded limits only: the interval judged against the limits: 't' (the Student-t interval; the default), 'jackknife', 'bootstrap-percentile', 'bootstrap-basic' or 'bootstrap-bca' (these need 'resampling').") { Choices = IntervalNames };
 
     public static KeySpec Root { get; } = new("recipe file", ValueKind.Map, "A StandFit recipe: how one part family is fitted and judged.")
     {
@@ -113,6 +118,7 @@ public static class RecipeSchema
                 [
                     RuleKey with { Required = true },
                     CoverageFactorKey,
+                    IntervalKey,
                 ],
             },
             new("sweep", ValueKind.Map, "Data-quality gates checked before any fit; a sweep that fails one is ruled retest.")
@@ -151,6 +157,18 @@ public static class RecipeSchema
                     new("max", ValueKind.Number, "Upper limit, inclusive."),
                     RuleKey,
                     CoverageFactorKey,
+                    IntervalKey,
+                ],
+            },
+            new("resampling", ValueKind.Map, "Jackknife and bootstrap error bars for every parameter and derived figure, written to the summary; guarded limits can judge their intervals ('interval').")
+            {
+                Children =
+                [
+                    new("seed", ValueKind.Integer, "The seed of every draw: each unit's stream is seeded from it, the unit's serial and its file's SHA-256.") { Required = true, Minimum = 0, Maximum = int.MaxValue },
+                    new("bootstrap", ValueKind.Text, "The bootstrap scheme: pairs, residual, wild-rademacher or wild-mammen; absent: no bootstrap (jackknife only).") { Choices = BootstrapSchemes },
+                    new("resamples", ValueKind.Integer, "Bootstrap resamples B (default 1000); required when a limit judges a bootstrap interval.") { Minimum = 100, Maximum = 100000 },
+                    new("jackknife", ValueKind.Text, "What the reported jackknife leaves out: delete-one (default), delete-leg or delete-cycle (these need columns.leg).") { Choices = JackknifeKinds },
+                    new("max_failed_percent", ValueKind.Number, "More failed bootstrap resamples than this % of B is a reason to retest; required when a limit judges a bootstrap interval.") { Minimum = 0, Maximum = 100 },
                 ],
             },
             new("gates", ValueKind.Map, "Residual-structure gates.")

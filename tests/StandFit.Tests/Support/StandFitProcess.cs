@@ -19,7 +19,10 @@ public static class StandFitProcess
         }
     }
 
-    public static Process Start(string workingDirectory, params string[] args)
+    public static Process Start(string workingDirectory, params string[] args) => Start(workingDirectory, null, args);
+
+    /// <summary>Starts standfit with extra environment variables (for example DOTNET_PROCESSOR_COUNT).</summary>
+    public static Process Start(string workingDirectory, IReadOnlyDictionary<string, string>? environment, params string[] args)
     {
         var info = new ProcessStartInfo("dotnet")
         {
@@ -35,12 +38,19 @@ public static class StandFitProcess
         }
 
         info.Environment["DOTNET_CLI_TELEMETRY_OPTOUT"] = "1";
+        foreach (var (key, value) in environment ?? new Dictionary<string, string>())
+        {
+            info.Environment[key] = value;
+        }
+
         return Process.Start(info) ?? throw new InvalidOperationException("dotnet did not start.");
     }
 
-    public static async Task<Outcome> RunAsync(string workingDirectory, TimeSpan timeout, params string[] args)
+    public static Task<Outcome> RunAsync(string workingDirectory, TimeSpan timeout, params string[] args) => RunAsync(workingDirectory, timeout, null, args);
+
+    public static async Task<Outcome> RunAsync(string workingDirectory, TimeSpan timeout, IReadOnlyDictionary<string, string>? environment, params string[] args)
     {
-        using var process = Start(workingDirectory, args);
+        using var process = Start(workingDirectory, environment, args);
         var output = process.StandardOutput.ReadToEndAsync();
         var error = process.StandardError.ReadToEndAsync();
         using var cancel = new CancellationTokenSource(timeout);
