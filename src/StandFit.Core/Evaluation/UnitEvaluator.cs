@@ -11,7 +11,8 @@ namespace StandFit.Core.Evaluation;
 
 /// <summary>
 /// The pipeline for one unit, with no I/O: assemble the sweep with the recipe's columns, fit the
-/// recipe's model, put t-based error bars on the parameters, run the residual gate, and judge.
+/// recipe's model, put t-based error bars on the parameters, compute the residual diagnostics and
+/// figures of merit, run the residual gates, and judge.
 /// </summary>
 public static class UnitEvaluator
 {
@@ -52,7 +53,8 @@ public static class UnitEvaluator
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
-        var figures = FigureTable.Compute(fit, parameters, runs, recipe);
+        var diagnostics = ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), recipe.DiagnosticsOptions);
+        var figures = FigureTable.Compute(fit, parameters, runs, recipe, diagnostics);
         var findings = new List<Finding>();
         foreach (var limit in recipe.Limits)
         {
@@ -71,6 +73,11 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, figures, Verdict.From(findings));
+        foreach (var diagnosticGate in recipe.DiagnosticGates)
+        {
+            findings.Add(diagnosticGate.Judge(diagnostics, sweep.SourceLines));
+        }
+
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, runs, figures, Verdict.From(findings), diagnostics);
     }
 }

@@ -121,6 +121,9 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
             .Concat(Paths("limits.<figure>.", RecipeBinder.LimitKeys))
             .Concat(Paths("gates.", RecipeBinder.GateKeys))
             .Concat(Paths("gates.runs_test.", RecipeBinder.RunsGateKeys))
+            .Concat(RecipeSchema.Root.Child("gates").Children.Where(g => g.Name != "runs_test").SelectMany(g => Paths("gates." + g.Name + ".", g.ChildNames)))
+            .Concat(Paths("set_points.", RecipeSchema.Root.Child("set_points").ChildNames))
+            .Concat(Paths("nominal.", RecipeSchema.Root.Child("nominal").ChildNames))
             .ToList();
         var configKeys = Paths("", ConfigLoader.TopKeys)
             .Concat(Paths("folders.", ConfigLoader.FolderKeys))
