@@ -1,8 +1,48 @@
+using StandFit.Core.Ingest;
+
 namespace StandFit.Core.Diagnostics;
 
-/// <summary>Orders in which residuals are examined.</summary>
+/// <summary>
+/// Orders in which residuals are examined: by stimulus (curvature shows as runs of one sign), by
+/// acquisition (drift and autocorrelation in time; a sweep's points are held in acquisition order,
+/// so this is index order), and per leg (the points of one approach direction, in acquisition order).
+/// </summary>
 public static class ResidualOrders
 {
+    /// <summary>Acquisition order: 0, 1, ..., n - 1 (a sweep holds its points in the order they were taken).</summary>
+    public static int[] ByAcquisition(int count)
+    {
+        var order = new int[count];
+        for (var i = 0; i < count; i++)
+        {
+            order[i] = i;
+        }
+
+        return order;
+    }
+
+    /// <summary>The indices of the points of one leg, in acquisition order (empty when the leg is absent).</summary>
+    public static int[] OfLeg(ReadOnlySpan<Leg> legs, Leg leg)
+    {
+        var count = 0;
+        foreach (var l in legs)
+        {
+            count += l == leg ? 1 : 0;
+        }
+
+        var order = new int[count];
+        var k = 0;
+        for (var i = 0; i < legs.Length; i++)
+        {
+            if (legs[i] == leg)
+            {
+                order[k++] = i;
+            }
+        }
+
+        return order;
+    }
+
     /// <summary>Point indices sorted by stimulus; ties keep acquisition order (a stable sort).</summary>
     public static int[] ByStimulus(ReadOnlySpan<double> stimulus)
     {

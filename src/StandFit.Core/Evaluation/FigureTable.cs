@@ -18,6 +18,22 @@ public static class FigureTable
     /// <summary>Figures every fit has, without an uncertainty of their own.</summary>
     public static readonly ImmutableArray<string> FitFigures = ["residual_sd", "r_squared", "adj_r_squared", "condition_number", "runs_p", "runs_z"];
 
+    /// <summary>
+    /// The residual diagnostics and figures of merit (docs/diagnostics.md, docs/figures-of-merit.md),
+    /// without an uncertainty of their own, so only simple-rule limits apply. A figure the unit's fit
+    /// cannot give (no replicates for lof_p, no down leg for hysteresis_pct ...) is absent for that unit.
+    /// </summary>
+    public static readonly ImmutableArray<string> DiagnosticFigures =
+    [
+        "dw", "dw_p", "lag1_autocorrelation", "ljung_box_p", "lof_f", "lof_p", "curvature_f", "curvature_p",
+        "bp", "bp_p", "sw_w", "sw_p", "ad_astar", "ad_p", "skewness", "excess_kurtosis",
+        "max_abs_rstudent", "outlier_p", "max_leverage", "max_cooks_distance",
+        "fso", "nonlinearity_terminal_pct", "nonlinearity_ls_pct", "nonlinearity_minimax_pct", "hysteresis_pct", "nonrepeatability_pct", "llf",
+    ];
+
+    /// <summary>Figures of merit against the nominal curve: only with the recipe's <c>nominal</c>.</summary>
+    public static readonly ImmutableArray<string> NominalFigures = ["zero_error_pct", "span_error_pct", "max_error_pct"];
+
     public const string HalfWidthSuffix = ".half_width";
 
     /// <summary>Every figure name a recipe with this model and these derived figures can limit, and whether it has an uncertainty.</summary>
@@ -35,7 +51,7 @@ public static class FigureTable
             names[d.Name] = true;
         }
 
-        foreach (var f in FitFigures)
+        foreach (var f in FitFigures.Concat(DiagnosticFigures).Concat(NominalFigures))
         {
             names[f] = false;
         }
@@ -43,7 +59,7 @@ public static class FigureTable
         return names.ToImmutable();
     }
 
-    public static ImmutableDictionary<string, FigureValue> Compute(FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, RunsTestResult runs, Recipe recipe)
+    public static ImmutableDictionary<string, FigureValue> Compute(FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, RunsTestResult runs, Recipe recipe, ResidualDiagnostics? diagnostics = null)
     {
         var figures = ImmutableDictionary.CreateBuilder<string, FigureValue>(StringComparer.Ordinal);
         foreach (var p in parameters.Concat(modelDerived))
@@ -80,7 +96,89 @@ public static class FigureTable
             figures["runs_z"] = new FigureValue("runs_z", runs.Z, null, null, "");
         }
 
+        if (diagnostics is not null)
+        {
+            AddDiagnostics(figures, diagnostics, recipe.Units.Output);
+        }
+
         return figures.ToImmutable();
+    }
+
+    private static void AddDiagnostics(ImmutableDictionary<string, FigureValue>.Builder figures, ResidualDiagnostics d, string outputUnit)
+    {
+        void Add(string name, double? value, string unit = "")
+        {
+            if (value is { } v && !double.IsNaN(v))
+            {
+                figures[name] = new FigureValue(name, v, null, null, unit);
+            }
+        }
+
+        if (d.DurbinWatson.IsApplicable)
+        {
+            Add("dw", d.DurbinWatson.Statistic);
+            Add("dw_p", d.DurbinWatson.P);
+        }
+
+        if (d.Autocorrelation.IsApplicable)
+        {
+            Add("lag1_autocorrelation", d.Autocorrelation.Lag1);
+            Add("ljung_box_p", d.Autocorrelation.P);
+        }
+
+        if (d.LackOfFit.IsApplicable)
+        {
+            Add("lof_f", d.LackOfFit.F);
+            Add("lof_p", d.LackOfFit.P);
+        }
+
+        if (d.Curvature.IsApplicable)
+        {
+            Add("curvature_f", d.Curvature.F);
+            Add("curvature_p", d.Curvature.P);
+        }
+
+        if (d.BreuschPagan.IsApplicable)
+        {
+            Add("bp", d.BreuschPagan.Statistic);
+            Add("bp_p", d.BreuschPagan.P);
+        }
+
+        if (d.ShapiroWilk.IsApplicable)
+        {
+            Add("sw_w", d.ShapiroWilk.W);
+            Add("sw_p", d.ShapiroWilk.P);
+        }
+
+        if (d.AndersonDarling.IsApplicable)
+        {
+            Add("ad_astar", d.AndersonDarling.AStar);
+            Add("ad_p", d.AndersonDarling.P);
+        }
+
+        Add("skewness", d.Moments.Skewness);
+        Add("excess_kurtosis", d.Moments.ExcessKurtosis);
+        if (d.Outliers.IsApplicable)
+        {
+            Add("max_abs_rstudent", d.Outliers.MaxAbsStudentized);
+            Add("outlier_p", d.Outliers.P);
+        }
+
+        Add("max_leverage", PointDiagnostics.MaxFinite(d.Points.Leverage));
+        Add("max_cooks_distance", PointDiagnostics.MaxFinite(d.Points.CooksDistance));
+        if (d.Merit is { } m)
+        {
+            Add("fso", m.FullScaleOutput, outputUnit);
+            Add("nonlinearity_terminal_pct", m.NonlinearityTerminalPct, "%");
+            Add("nonlinearity_ls_pct", m.NonlinearityLeastSquaresPct, "%");
+            Add("nonlinearity_minimax_pct", m.NonlinearityMinimaxPct, "%");
+            Add("hysteresis_pct", m.HysteresisPct, "%");
+            Add("nonrepeatability_pct", m.NonrepeatabilityPct, "%");
+            Add("zero_error_pct", m.ZeroErrorPct, "%");
+            Add("span_error_pct", m.SpanErrorPct, "%");
+            Add("max_error_pct", m.MaxErrorPct, "%");
+            Add("llf", m.LowerLimitFactor, outputUnit);
+        }
     }
 
     /// <summary>g'b and sqrt(g' C g): a linear combination of the parameters and its standard error.</summary>

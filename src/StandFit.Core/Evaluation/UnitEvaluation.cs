@@ -49,6 +49,9 @@ public sealed class UnitEvaluation
 
     public RunsTestResult? Runs { get; }
 
+    /// <summary>The residual diagnostics and figures of merit (null when the unit was not fitted).</summary>
+    public ResidualDiagnostics? Diagnostics { get; private init; }
+
     /// <summary>Every figure a limit can name (empty when the unit was not fitted).</summary>
     public ImmutableDictionary<string, FigureValue> Figures { get; }
 
@@ -64,8 +67,8 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Uncertainty.Resampling.ResamplingResult? resampling = null) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null) { Resampling = resampling };
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Uncertainty.Resampling.ResamplingResult? resampling = null, ResidualDiagnostics? diagnostics = null) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null) { Resampling = resampling, Diagnostics = diagnostics };
 
     /// <summary>A unit whose sweep failed a data-quality gate: not fitted, ruled retest.</summary>
     internal static UnitEvaluation Screened(string sourceName, Recipe recipe, Sweep sweep, Verdict verdict) =>

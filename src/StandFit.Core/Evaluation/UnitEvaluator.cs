@@ -13,7 +13,8 @@ namespace StandFit.Core.Evaluation;
 /// <summary>
 /// The pipeline for one unit, with no I/O: assemble the sweep with the recipe's columns, fit the
 /// recipe's model (weighted when the recipe says so), put t-based error bars on the parameters and
-/// the derived quantities, run the residual gate, and judge.
+/// the derived quantities, compute the residual diagnostics and figures of merit, resample when the
+/// recipe asks, run the residual gates, and judge.
 /// </summary>
 public static class UnitEvaluator
 {
@@ -72,7 +73,8 @@ public static class UnitEvaluator
         var derived = DerivedEstimates.Compute(fit, recipe.Confidence);
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
-        var figures = FigureTable.Compute(fit, parameters, derived, runs, recipe);
+        var diagnostics = ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), recipe.DiagnosticsOptions);
+        var figures = FigureTable.Compute(fit, parameters, derived, runs, recipe, diagnostics);
         var findings = new List<Finding>();
         ResamplingResult? resampling = null;
         if (recipe.Resampling is { } plan)
@@ -99,6 +101,11 @@ public static class UnitEvaluator
             findings.Add(gate.Judge(runs));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling);
+        foreach (var diagnosticGate in recipe.DiagnosticGates)
+        {
+            findings.Add(diagnosticGate.Judge(diagnostics, sweep.SourceLines));
+        }
+
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling, diagnostics);
     }
 }

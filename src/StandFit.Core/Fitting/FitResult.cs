@@ -150,6 +150,26 @@ public sealed class FitResult
         }
     }
 
+    /// <summary>
+    /// Row <paramref name="point"/> of the design the solve used: the model's centred and scaled
+    /// basis at the point, times sqrt(w) for a weighted fit (the whitened row that goes with
+    /// <see cref="WeightedResiduals"/>).
+    /// </summary>
+    public void FillDesignRow(int point, Span<double> row)
+    {
+        Span<double> x = stackalloc double[Inputs.Length];
+        Point(point, x);
+        Model.FillScaledBasis(x, Scaling, row);
+        if (IsWeighted)
+        {
+            var scale = Math.Sqrt(Weights[point]);
+            foreach (ref var v in row)
+            {
+                v *= scale;
+            }
+        }
+    }
+
     private static ImmutableArray<double> CorrelationOf(ImmutableArray<double> covariance, int p)
     {
         var correlation = new double[p * p];

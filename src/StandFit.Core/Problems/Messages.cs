@@ -70,6 +70,7 @@ public static class Messages
     public static string GuardedNeedsUncertainty(string figure) => F($"limit on '{figure}' uses the guarded rule, but '{figure}' has no uncertainty of its own; give it 'rule: simple'.");
     public static string NeedsLegColumn(string where) => F($"{where} needs 'columns.leg' so the legs can be told apart.");
     public static string NeedsRange(string where) => F($"{where} needs 'sweep.range' (the nominal stimulus range).");
+    public static string NominalNeeded(string figure) => F($"limit on '{figure}', an error against the nominal curve, but the recipe has no 'nominal' section; add 'nominal: {{ offset: ..., gain: ... }}'.");
     public static string DecisionNeeded() => "the recipe has limits but no 'decision' section; say 'decision: { rule: guarded }' or 'rule: simple' so the decision rule is agreed, not assumed.";
     public static string CoverageWithoutGuarded(string where) => F($"{where} gives a coverage factor but the rule is 'simple'; remove 'coverage_factor' or use 'rule: guarded'.");
     public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at' or 'value_at'.");
@@ -85,7 +86,8 @@ public static class Messages
             : F($"{where} is '{shown}'; the choices are: {string.Join(", ", choices)}.");
     public static string MinAboveMax(string where, string min, string max) => F($"{where} has min {min} above max {max}; swap them or fix one.");
     public static string LimitNeedsBound(string where) => F($"{where} needs 'min', 'max' or both.");
-    public static string UnknownFigure(string figure, string model, IEnumerable<string> figures) => F($"limit on '{figure}', but model {model} produces no such figure; its figures are: {string.Join(", ", figures)}.");
+    public static string UnknownFigure(string figure, string model, IEnumerable<string> modelFigures, string? suggestion) =>
+        F($"limit on '{figure}', but model {model} produces no such figure{(suggestion is null ? "" : F($" (did you mean '{suggestion}'?)"))}; the model's own figures are: {string.Join(", ", modelFigures)}. The fit figures, residual diagnostics and figures of merit every model has are listed in docs/recipes.md, 'Figures a limit can name'.");
     public static string DegreeWithoutPolynomial(string model) => KeyNotForModel("degree", "polynomial", model);
     public static string KeyNotForModel(string key, string owner, string model) => F($"'{key}' applies only to model type '{owner}', not '{model}'; remove it or change the type.");
     public static string ModelTakesOneInput(string model, int inputs) => F($"model type '{model}' takes one stimulus column, but 'columns.stimulus' names {inputs}; name one column, or use type 'basis' for a model of several inputs.");
@@ -293,4 +295,40 @@ public static class Messages
 
     public static string JackknifeUnavailable(string figure, int line) =>
         F($"delete-one jackknife of {figure}: leaving out the point on line {line} leaves a sweep that cannot be fitted, so the jackknife figures and the BCa intervals are not available");
+
+    // ---- diagnostic gates -----------------------------------------------------------------------
+    private static string Floor(double p, double floor, bool below) =>
+        below ? F($"p = {Numbers.Format(p, 3)} is below the floor {Numbers.Format(floor)}") : F($"p = {Numbers.Format(p, 3)} is at or above the floor {Numbers.Format(floor)}");
+
+    public static string DurbinWatsonFinding(double d, double p, double floor, bool below) =>
+        below
+            ? F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals in acquisition order, exact one-sided {Floor(p, floor, below)}: neighbouring residuals are alike (a drift, or a trend the model misses); check the stand and the model")
+            : F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals in acquisition order, exact one-sided {Floor(p, floor, below)}");
+
+    public static string LackOfFitFinding(double f, int lackDf, int pureDf, int setPoints, double p, double floor, bool below) =>
+        below
+            ? F($"lack of fit F = {Numbers.Format(f, 4)} on {lackDf} and {pureDf} df (pure error from {setPoints} set points), {Floor(p, floor, below)}: the model misses the set-point means by more than the replicates scatter")
+            : F($"lack of fit F = {Numbers.Format(f, 4)} on {lackDf} and {pureDf} df (pure error from {setPoints} set points), {Floor(p, floor, below)}");
+
+    public static string CurvatureFinding(int power, double f, int df, double p, double floor, bool below) =>
+        below
+            ? F($"the next power x^{power} has partial F = {Numbers.Format(f, 4)} on 1 and {df} df, {Floor(p, floor, below)}: the curve bends more than the model allows")
+            : F($"the next power x^{power} has partial F = {Numbers.Format(f, 4)} on 1 and {df} df, {Floor(p, floor, below)}");
+
+    public static string NormalityFinding(string test, string statistic, double value, double p, double floor, bool below) =>
+        below
+            ? F($"{test} {statistic} = {Numbers.Format(value, 4)} on the residuals, {Floor(p, floor, below)}: the residuals are not normal (an outlier, a mixture of populations or structure)")
+            : F($"{test} {statistic} = {Numbers.Format(value, 4)} on the residuals, {Floor(p, floor, below)}");
+
+    public static string HeteroscedasticityFinding(double bp, int df, double p, double floor, bool below) =>
+        below
+            ? F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, {Floor(p, floor, below)}: the scatter of the residuals changes along the sweep")
+            : F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, {Floor(p, floor, below)}");
+
+    public static string OutlierFinding(double r, int point, int line, int df, double p, double floor, bool below) =>
+        below
+            ? F($"the largest studentized residual |t| = {Numbers.Format(r, 4)} (point {point}, line {line}) on {df} df, Bonferroni {Floor(p, floor, below)}: that reading is an outlier; check the stand and the unit, and test again")
+            : F($"the largest studentized residual |t| = {Numbers.Format(r, 4)} (point {point}, line {line}) on {df} df, Bonferroni {Floor(p, floor, below)}");
+
+    public static string DiagnosticNotApplicable(string test) => F($"the {test} cannot be made on this fit (too few points or set points, no replicates, or no scatter left); the gate does not judge");
 }

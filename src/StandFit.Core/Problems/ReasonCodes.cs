@@ -89,6 +89,26 @@ public static class ReasonCodes
     public static readonly ReasonCode ResamplingInfluentialPoint = new("resampling.influential_point", ReasonKind.Pass, "The delete-one jackknife names the point whose deletion moves the gain most, with its line in the sweep file.");
     public static readonly ReasonCode ResamplingJackknifeUnavailable = new("resampling.jackknife_unavailable", ReasonKind.Pass, "A delete-one deletion leaves a sweep that cannot be fitted: no jackknife figures and no BCa intervals for this unit (a limit that needs them is not evaluated).");
 
+    // Diagnostic gates (recipe 'gates'): each fails the unit when its p-value is below the recipe's floor.
+    public static readonly ReasonCode DurbinWatsonOk = new("residuals.durbin_watson_ok", ReasonKind.Pass, "The Durbin-Watson test on the residuals in acquisition order finds no positive autocorrelation.");
+    public static readonly ReasonCode Autocorrelated = new("residuals.autocorrelated", ReasonKind.Fail, "The Durbin-Watson exact p-value is below the floor: neighbouring residuals in acquisition order are alike (a drift or a missed trend).");
+    public static readonly ReasonCode DurbinWatsonNotApplicable = new("residuals.durbin_watson_not_applicable", ReasonKind.Pass, "The Durbin-Watson test cannot be made on this fit (too few points, or an exact fit); the gate does not judge.");
+    public static readonly ReasonCode LackOfFitOk = new("residuals.lack_of_fit_ok", ReasonKind.Pass, "The lack-of-fit test against pure error from replicated set points finds no lack of fit.");
+    public static readonly ReasonCode LackOfFit = new("residuals.lack_of_fit", ReasonKind.Fail, "The lack-of-fit p-value is below the floor: the model misses the set-point means by more than the replicates scatter.");
+    public static readonly ReasonCode LackOfFitNotApplicable = new("residuals.lack_of_fit_not_applicable", ReasonKind.Pass, "The lack-of-fit test cannot be made: no replicated set points, or no more set points than parameters; the gate does not judge.");
+    public static readonly ReasonCode CurvatureOk = new("residuals.curvature_ok", ReasonKind.Pass, "The partial F test of the next polynomial power finds no curvature the model misses.");
+    public static readonly ReasonCode Curvature = new("residuals.curvature", ReasonKind.Fail, "The curvature p-value is below the floor: the next polynomial power explains part of the residuals.");
+    public static readonly ReasonCode CurvatureNotApplicable = new("residuals.curvature_not_applicable", ReasonKind.Pass, "The curvature test cannot be made (a model that is not a polynomial, or too few points or set points); the gate does not judge.");
+    public static readonly ReasonCode NormalityOk = new("residuals.normality_ok", ReasonKind.Pass, "The normality test of the residuals (Shapiro-Wilk or Anderson-Darling) finds no departure from normality.");
+    public static readonly ReasonCode NotNormal = new("residuals.not_normal", ReasonKind.Fail, "The normality test's p-value is below the floor: the residuals are not normal.");
+    public static readonly ReasonCode NormalityNotApplicable = new("residuals.normality_not_applicable", ReasonKind.Pass, "The normality test cannot be made (too few or too many points, or residuals without scatter); the gate does not judge.");
+    public static readonly ReasonCode VarianceOk = new("residuals.variance_ok", ReasonKind.Pass, "The Breusch-Pagan test finds no change of the residual variance along the sweep.");
+    public static readonly ReasonCode Heteroscedastic = new("residuals.heteroscedastic", ReasonKind.Fail, "The Breusch-Pagan p-value is below the floor: the residual variance changes along the sweep.");
+    public static readonly ReasonCode HeteroscedasticityNotApplicable = new("residuals.heteroscedasticity_not_applicable", ReasonKind.Pass, "The Breusch-Pagan test cannot be made on this fit; the gate does not judge.");
+    public static readonly ReasonCode OutliersOk = new("residuals.outliers_ok", ReasonKind.Pass, "The Bonferroni test of the largest studentized residual finds no outlier.");
+    public static readonly ReasonCode Outlier = new("residuals.outlier", ReasonKind.Fail, "The Bonferroni-adjusted p-value of the largest studentized residual is below the floor: one reading is an outlier.");
+    public static readonly ReasonCode OutliersNotApplicable = new("residuals.outliers_not_applicable", ReasonKind.Pass, "The outlier test cannot be made (too few degrees of freedom); the gate does not judge.");
+
     public static ImmutableArray<ReasonCode> All { get; } =
     [
         InputEmpty, InputBinary, InputEncoding, InputTooLarge, InputLineTooLong, InputBadMetadata,
@@ -101,6 +121,12 @@ public static class ReasonCodes
         LimitWithin, LimitAbove, LimitBelow, LimitStraddles, LimitNotEvaluated,
         RunsOk, RunsNotApplicable, RunsStructure,
         ResamplingTooManyFailures, ResamplingInfluentialPoint, ResamplingJackknifeUnavailable,
+        DurbinWatsonOk, Autocorrelated, DurbinWatsonNotApplicable,
+        LackOfFitOk, LackOfFit, LackOfFitNotApplicable,
+        CurvatureOk, Curvature, CurvatureNotApplicable,
+        NormalityOk, NotNormal, NormalityNotApplicable,
+        VarianceOk, Heteroscedastic, HeteroscedasticityNotApplicable,
+        OutliersOk, Outlier, OutliersNotApplicable,
     ];
 
     /// <summary>The registry entry of a concrete code (<c>gain.above_limit</c> finds <c>{figure}.above_limit</c>), or null.</summary>

@@ -141,6 +141,18 @@ public sealed class Recipe
     /// <summary>Jackknife and bootstrap error bars (<c>resampling:</c>); null when the recipe asks for none.</summary>
     public Uncertainty.Resampling.ResamplingPlan? Resampling { get; init; }
 
+    /// <summary>The residual-structure gates on the diagnostics (Durbin-Watson, lack of fit, curvature, normality, variance, outliers), in recipe order.</summary>
+    public ImmutableArray<DiagnosticGate> DiagnosticGates { get; init; } = [];
+
+    /// <summary>How set points are told apart (lack of fit, figures of merit): stimulus values within this of a neighbour are one set point; 0 groups equal values only.</summary>
+    public double SetPointTolerance { get; init; }
+
+    /// <summary>The part's nominal transfer curve (zero, span and largest error); null when the recipe gives none.</summary>
+    public Merit.NominalLine? Nominal { get; init; }
+
+    /// <summary>The options the residual diagnostics take from this recipe.</summary>
+    public Diagnostics.DiagnosticsOptions DiagnosticsOptions => new() { SetPointTolerance = SetPointTolerance, Nominal = Nominal };
+
     /// <summary>The data-quality gates checked before any fit.</summary>
     public SweepExpectations Sweep { get; init; } = SweepExpectations.None;
 

@@ -115,7 +115,7 @@ public sealed class DerivedRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 5;
+    public const int CurrentSchemaVersion = 6;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -245,6 +245,139 @@ public sealed class SummaryRecord
 
     [JsonPropertyName("runs_method")]
     public string? RunsMethod { get; set; }
+
+    // Residual diagnostics and figures of merit (schema 3; docs/outputs.md, docs/diagnostics.md).
+    [JsonPropertyName("runs_acquisition_count")]
+    public int? RunsAcquisitionCount { get; set; }
+
+    [JsonPropertyName("runs_acquisition_z")]
+    public double? RunsAcquisitionZ { get; set; }
+
+    [JsonPropertyName("runs_acquisition_p")]
+    public double? RunsAcquisitionP { get; set; }
+
+    [JsonPropertyName("dw")]
+    public double? DurbinWatson { get; set; }
+
+    [JsonPropertyName("dw_p")]
+    public double? DurbinWatsonP { get; set; }
+
+    [JsonPropertyName("lag1_autocorrelation")]
+    public double? Lag1Autocorrelation { get; set; }
+
+    [JsonPropertyName("ljung_box_q")]
+    public double? LjungBoxQ { get; set; }
+
+    [JsonPropertyName("ljung_box_p")]
+    public double? LjungBoxP { get; set; }
+
+    [JsonPropertyName("set_points")]
+    public int? SetPoints { get; set; }
+
+    [JsonPropertyName("lof_f")]
+    public double? LackOfFitF { get; set; }
+
+    [JsonPropertyName("lof_df1")]
+    public int? LackOfFitDf1 { get; set; }
+
+    [JsonPropertyName("lof_df2")]
+    public int? LackOfFitDf2 { get; set; }
+
+    [JsonPropertyName("lof_p")]
+    public double? LackOfFitP { get; set; }
+
+    [JsonPropertyName("curvature_f")]
+    public double? CurvatureF { get; set; }
+
+    [JsonPropertyName("curvature_df")]
+    public int? CurvatureDf { get; set; }
+
+    [JsonPropertyName("curvature_p")]
+    public double? CurvatureP { get; set; }
+
+    [JsonPropertyName("bp")]
+    public double? BreuschPagan { get; set; }
+
+    [JsonPropertyName("bp_df")]
+    public int? BreuschPaganDf { get; set; }
+
+    [JsonPropertyName("bp_p")]
+    public double? BreuschPaganP { get; set; }
+
+    [JsonPropertyName("sw_w")]
+    public double? ShapiroWilkW { get; set; }
+
+    [JsonPropertyName("sw_p")]
+    public double? ShapiroWilkP { get; set; }
+
+    [JsonPropertyName("ad_a2")]
+    public double? AndersonDarlingA2 { get; set; }
+
+    [JsonPropertyName("ad_astar")]
+    public double? AndersonDarlingAStar { get; set; }
+
+    [JsonPropertyName("ad_p")]
+    public double? AndersonDarlingP { get; set; }
+
+    [JsonPropertyName("skewness")]
+    public double? Skewness { get; set; }
+
+    [JsonPropertyName("excess_kurtosis")]
+    public double? ExcessKurtosis { get; set; }
+
+    [JsonPropertyName("max_abs_rstudent")]
+    public double? MaxAbsRstudent { get; set; }
+
+    [JsonPropertyName("outlier_point")]
+    public int? OutlierPoint { get; set; }
+
+    [JsonPropertyName("outlier_line")]
+    public int? OutlierLine { get; set; }
+
+    [JsonPropertyName("outlier_p")]
+    public double? OutlierP { get; set; }
+
+    [JsonPropertyName("max_leverage")]
+    public double? MaxLeverage { get; set; }
+
+    [JsonPropertyName("max_cooks_distance")]
+    public double? MaxCooksDistance { get; set; }
+
+    [JsonPropertyName("histogram_edges")]
+    public List<double> HistogramEdges { get; set; } = [];
+
+    [JsonPropertyName("histogram_counts")]
+    public List<int> HistogramCounts { get; set; } = [];
+
+    [JsonPropertyName("fso")]
+    public double? FullScaleOutput { get; set; }
+
+    [JsonPropertyName("nonlinearity_terminal_pct")]
+    public double? NonlinearityTerminalPct { get; set; }
+
+    [JsonPropertyName("nonlinearity_ls_pct")]
+    public double? NonlinearityLeastSquaresPct { get; set; }
+
+    [JsonPropertyName("nonlinearity_minimax_pct")]
+    public double? NonlinearityMinimaxPct { get; set; }
+
+    [JsonPropertyName("hysteresis_pct")]
+    public double? HysteresisPct { get; set; }
+
+    [JsonPropertyName("nonrepeatability_pct")]
+    public double? NonrepeatabilityPct { get; set; }
+
+    [JsonPropertyName("zero_error_pct")]
+    public double? ZeroErrorPct { get; set; }
+
+    [JsonPropertyName("span_error_pct")]
+    public double? SpanErrorPct { get; set; }
+
+    [JsonPropertyName("max_error_pct")]
+    public double? MaxErrorPct { get; set; }
+
+    [JsonPropertyName("llf")]
+    public double? LowerLimitFactor { get; set; }
 
     /// <summary>pass, fail, retest or rejected.</summary>
     [JsonPropertyName("ruling")]

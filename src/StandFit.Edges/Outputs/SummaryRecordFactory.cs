@@ -1,3 +1,4 @@
+using StandFit.Core.Diagnostics;
 using StandFit.Core.Evaluation;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
@@ -96,6 +97,11 @@ public static class SummaryRecordFactory
 
         ResamplingRecords.Fill(record, unit.Resampling);
 
+        if (unit.Diagnostics is { } diagnostics)
+        {
+            AddDiagnostics(record, diagnostics, unit.Sweep);
+        }
+
         if (unit.Parameter("offset") is { } offset)
         {
             (record.OffsetEstimate, record.OffsetSe, record.OffsetCiLow, record.OffsetCiHigh, record.OffsetT, record.OffsetP) = Flat(offset);
@@ -107,6 +113,78 @@ public static class SummaryRecordFactory
         }
 
         return record;
+    }
+
+    private static void AddDiagnostics(SummaryRecord record, ResidualDiagnostics d, Sweep? sweep)
+    {
+        static double? V(double value) => double.IsNaN(value) ? null : value;
+        if (d.RunsByAcquisition.IsApplicable)
+        {
+            (record.RunsAcquisitionCount, record.RunsAcquisitionZ, record.RunsAcquisitionP) = (d.RunsByAcquisition.Runs, d.RunsByAcquisition.Z, d.RunsByAcquisition.P);
+        }
+
+        if (d.DurbinWatson.IsApplicable)
+        {
+            (record.DurbinWatson, record.DurbinWatsonP) = (d.DurbinWatson.Statistic, d.DurbinWatson.P);
+        }
+
+        if (d.Autocorrelation.IsApplicable)
+        {
+            (record.Lag1Autocorrelation, record.LjungBoxQ, record.LjungBoxP) = (d.Autocorrelation.Lag1, d.Autocorrelation.LjungBoxQ, d.Autocorrelation.P);
+        }
+
+        record.SetPoints = d.SetPoints.Count;
+        if (d.LackOfFit.IsApplicable)
+        {
+            (record.LackOfFitF, record.LackOfFitDf1, record.LackOfFitDf2, record.LackOfFitP) = (d.LackOfFit.F, d.LackOfFit.LackDf, d.LackOfFit.PureErrorDf, d.LackOfFit.P);
+        }
+
+        if (d.Curvature.IsApplicable)
+        {
+            (record.CurvatureF, record.CurvatureDf, record.CurvatureP) = (d.Curvature.F, d.Curvature.Df, d.Curvature.P);
+        }
+
+        if (d.BreuschPagan.IsApplicable)
+        {
+            (record.BreuschPagan, record.BreuschPaganDf, record.BreuschPaganP) = (d.BreuschPagan.Statistic, d.BreuschPagan.Df, d.BreuschPagan.P);
+        }
+
+        if (d.ShapiroWilk.IsApplicable)
+        {
+            (record.ShapiroWilkW, record.ShapiroWilkP) = (d.ShapiroWilk.W, d.ShapiroWilk.P);
+        }
+
+        if (d.AndersonDarling.IsApplicable)
+        {
+            (record.AndersonDarlingA2, record.AndersonDarlingAStar, record.AndersonDarlingP) = (d.AndersonDarling.A2, d.AndersonDarling.AStar, d.AndersonDarling.P);
+        }
+
+        (record.Skewness, record.ExcessKurtosis) = (V(d.Moments.Skewness), V(d.Moments.ExcessKurtosis));
+        if (d.Outliers.IsApplicable)
+        {
+            record.MaxAbsRstudent = d.Outliers.MaxAbsStudentized;
+            record.OutlierPoint = d.Outliers.Index + 1;
+            record.OutlierLine = sweep is not null && d.Outliers.Index < sweep.SourceLines.Length ? sweep.SourceLines[d.Outliers.Index] : null;
+            record.OutlierP = d.Outliers.P;
+        }
+
+        record.MaxLeverage = V(PointDiagnostics.MaxFinite(d.Points.Leverage));
+        record.MaxCooksDistance = V(PointDiagnostics.MaxFinite(d.Points.CooksDistance));
+        record.HistogramEdges = [.. d.Histogram.Edges];
+        record.HistogramCounts = [.. d.Histogram.Counts];
+        if (d.Merit is { } m)
+        {
+            record.FullScaleOutput = m.FullScaleOutput;
+            record.NonlinearityTerminalPct = m.NonlinearityTerminalPct;
+            record.NonlinearityLeastSquaresPct = m.NonlinearityLeastSquaresPct;
+            record.NonlinearityMinimaxPct = m.NonlinearityMinimaxPct;
+            record.HysteresisPct = m.HysteresisPct;
+            record.NonrepeatabilityPct = m.NonrepeatabilityPct;
+            record.ZeroErrorPct = m.ZeroErrorPct;
+            record.SpanErrorPct = m.SpanErrorPct;
+            record.MaxErrorPct = m.MaxErrorPct;
+            record.LowerLimitFactor = m.LowerLimitFactor;
+        }
     }
 
     public static string RulingText(Ruling ruling) => ruling switch

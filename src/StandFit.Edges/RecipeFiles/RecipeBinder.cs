@@ -4,6 +4,7 @@ using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
+using StandFit.Core.Merit;
 using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
 using StandFit.Core.Screening;
@@ -84,7 +85,12 @@ public static partial class RecipeBinder
         var limits = ReadLimits(top, model, derived, decision);
         var resampling = ReadResampling(top, columns, limits);
         var sweep = ReadSweep(top, columns);
-        var runsGate = ReadGates(top);
+        var gates = top.Map("gates", GateKeys, required: false);
+        var runsGate = ReadGates(gates);
+        var diagnosticGates = ReadDiagnosticGates(gates);
+        var setPointTolerance = ReadSetPoints(top);
+        var nominal = ReadNominal(top);
+        CheckNominalFigures(top, limits, nominal);
 
         if (sink.HasProblems || name is null || version is null || columns is null || model is null || confidence is null || weights is null)
         {
@@ -112,6 +118,9 @@ public static partial class RecipeBinder
             Extends = extends,
             IsFamily = family,
             Resampling = resampling,
+            DiagnosticGates = diagnosticGates,
+            SetPointTolerance = setPointTolerance,
+            Nominal = nominal,
         };
     }
 
@@ -584,7 +593,7 @@ public static partial class RecipeBinder
             var known = figures is null || figures.ContainsKey(figure);
             if (!known)
             {
-                limits.Sink.Add(RecipeCodes.UnknownFigure, Messages.UnknownFigure(figure, model!.Name, FigureOrder(model, derived)), entry.Key);
+                limits.Sink.Add(RecipeCodes.UnknownFigure, Messages.UnknownFigure(figure, model!.Name, ModelFigures(model, derived), Suggestions.Closest(figure, AllFigures(model, derived))), entry.Key);
             }
 
             var bounds = limits.Map(figure, LimitKeys, required: true);
@@ -634,11 +643,17 @@ public static partial class RecipeBinder
     }
 
     /// <summary>The figures a recipe can limit, in the order a reader expects: parameters, half-widths, derived, fit figures.</summary>
-    private static IEnumerable<string> FigureOrder(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
+    /// <summary>The figures this model and these derived figures add: parameters, trade coefficients, their half-widths, the recipe's derived figures.</summary>
+    private static IEnumerable<string> ModelFigures(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
         model.ParameterNames.Concat(model.DerivedNames)
             .Concat(model.ParameterNames.Concat(model.DerivedNames).Select(p => p + FigureTable.HalfWidthSuffix))
-            .Concat(derived.Select(d => d.Name))
-            .Concat(FigureTable.FitFigures);
+            .Concat(derived.Select(d => d.Name));
+
+    private static IEnumerable<string> AllFigures(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
+        ModelFigures(model, derived)
+            .Concat(FigureTable.FitFigures)
+            .Concat(FigureTable.DiagnosticFigures)
+            .Concat(FigureTable.NominalFigures);
 
     private static SweepExpectations ReadSweep(MapReader top, ColumnMap? columns)
     {
@@ -731,9 +746,145 @@ public static partial class RecipeBinder
         };
     }
 
-    private static RunsGate? ReadGates(MapReader top)
+    private static ImmutableArray<DiagnosticGate> ReadDiagnosticGates(MapReader? gates)
     {
-        var gates = top.Map("gates", GateKeys, required: false);
+        if (gates is null)
+        {
+            return [];
+        }
+
+        var spec = Root.Child("gates");
+        var builder = ImmutableArray.CreateBuilder<DiagnosticGate>();
+        foreach (var entry in gates.Entries)
+        {
+            var key = entry.Key.Text;
+            var kind = key switch
+            {
+                "durbin_watson" => DiagnosticGateKind.DurbinWatson,
+                "lack_of_fit" => DiagnosticGateKind.LackOfFit,
+                "curvature" => DiagnosticGateKind.Curvature,
+                "normality" => DiagnosticGateKind.Normality,
+                "heteroscedasticity" => DiagnosticGateKind.Heteroscedasticity,
+                "outliers" => DiagnosticGateKind.Outliers,
+                _ => (DiagnosticGateKind?)null,
+            };
+            if (kind is null)
+            {
+                continue; // runs_test, read by ReadGates
+            }
+
+            var gate = gates.Map(key, spec.Child(key).ChildNames, required: false);
+            if (gate is null)
+            {
+                continue;
+            }
+
+            var normality = NormalityTest.ShapiroWilk;
+            if (kind == DiagnosticGateKind.Normality)
+            {
+                var test = gate.Text("test", required: true);
+                switch (test)
+                {
+                    case null:
+                        break;
+                    case "shapiro-wilk":
+                        normality = NormalityTest.ShapiroWilk;
+                        break;
+                    case "anderson-darling":
+                        normality = NormalityTest.AndersonDarling;
+                        break;
+                    default:
+                        gate.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(gate.Path("test"), test, RecipeSchema.NormalityTests, Suggestions.Closest(test, RecipeSchema.NormalityTests)), gate.Node("test"));
+                        break;
+                }
+            }
+
+            if (ReadFloor(gate) is { } floor)
+            {
+                builder.Add(new DiagnosticGate(kind.Value, floor, normality));
+            }
+        }
+
+        return builder.ToImmutable();
+    }
+
+    private static double? ReadFloor(MapReader gate)
+    {
+        var floor = gate.Number("p_min", required: true);
+        if (floor is null)
+        {
+            return null;
+        }
+
+        if (!(floor.Value is > 0 and < 0.5))
+        {
+            gate.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(gate.Path("p_min"), Numbers.Format(floor.Value), "a p-value above 0 and below 0.5 (0.01 is common)"), gate.Node("p_min"));
+            return null;
+        }
+
+        return floor;
+    }
+
+    private static double ReadSetPoints(MapReader top)
+    {
+        var section = top.Map("set_points", Root.Child("set_points").ChildNames, required: false);
+        var tolerance = section?.Number("tolerance", required: true);
+        if (section is null || tolerance is null)
+        {
+            return 0;
+        }
+
+        if (!(tolerance.Value >= 0))
+        {
+            section.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(section.Path("tolerance"), Numbers.Format(tolerance.Value), "zero or more (stimulus units)"), section.Node("tolerance"));
+            return 0;
+        }
+
+        return tolerance.Value;
+    }
+
+    private static NominalLine? ReadNominal(MapReader top)
+    {
+        var section = top.Map("nominal", Root.Child("nominal").ChildNames, required: false);
+        if (section is null)
+        {
+            return null;
+        }
+
+        var offset = section.Number("offset", required: true);
+        var gain = section.Number("gain", required: true);
+        if (offset is null || gain is null)
+        {
+            return null;
+        }
+
+        if (gain.Value == 0)
+        {
+            section.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(section.Path("gain"), "0", "a sensitivity other than 0"), section.Node("gain"));
+            return null;
+        }
+
+        return new NominalLine(offset.Value, gain.Value);
+    }
+
+    /// <summary>A limit on an error against the nominal curve needs the curve.</summary>
+    private static void CheckNominalFigures(MapReader top, ImmutableArray<FigureLimit> limits, NominalLine? nominal)
+    {
+        if (nominal is not null || top.Has("nominal"))
+        {
+            return;
+        }
+
+        var section = top.Node("limits") as YamlMap;
+        foreach (var limit in limits.Where(l => FigureTable.NominalFigures.Contains(l.Figure)))
+        {
+            var node = section?.Entries.FirstOrDefault(e => e.Key.Text == limit.Figure)?.Key;
+            top.Sink.Add(RecipeCodes.Contradiction, Messages.NominalNeeded(limit.Figure), node);
+        }
+    }
+
+    private static RunsGate? ReadGates(MapReader? gates)
+    {
         var runs = gates?.Map("runs_test", RunsGateKeys, required: false);
         if (runs is null)
         {

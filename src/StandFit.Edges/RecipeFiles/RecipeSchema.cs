@@ -54,6 +54,20 @@ public static class RecipeSchema
     public static readonly ImmutableArray<string> IntervalNames = ["t", "jackknife", "bootstrap-percentile", "bootstrap-basic", "bootstrap-bca"];
     public static readonly ImmutableArray<string> BootstrapSchemes = ["pairs", "residual", "wild-rademacher", "wild-mammen"];
     public static readonly ImmutableArray<string> JackknifeKinds = ["delete-one", "delete-leg", "delete-cycle"];
+    public static readonly ImmutableArray<string> NormalityTests = ["shapiro-wilk", "anderson-darling"];
+
+    /// <summary>The gates on the residual diagnostics that take only a p-value floor, with what each tests.</summary>
+    public static readonly ImmutableArray<(string Key, string Description)> FloorGates =
+    [
+        ("durbin_watson", "Durbin-Watson on the residuals in acquisition order, exact one-sided p (positive autocorrelation)."),
+        ("lack_of_fit", "Lack-of-fit F against pure error from replicated set points (see set_points)."),
+        ("curvature", "Partial F of the next polynomial power."),
+        ("heteroscedasticity", "Breusch-Pagan, Koenker's studentized form: a residual variance that changes along the sweep."),
+        ("outliers", "Bonferroni test of the largest externally studentized residual."),
+    ];
+
+    private static KeySpec PMin(string what) =>
+        new("p_min", ValueKind.Number, "The unit fails when " + what + " is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5 };
 
     private static readonly KeySpec RuleKey = new("rule", ValueKind.Text, "Decision rule: 'guarded' (guard band from the expanded uncertainty; undecided zone ruled retest) or 'simple' (the estimate inside the limits passes).") { Choices = Rules };
 
@@ -149,7 +163,7 @@ public static class RecipeSchema
                     new("value_at", ValueKind.Number, "The fitted output at this stimulus, with its standard error."),
                 ],
             },
-            new("limits", ValueKind.NamedMaps, "Specification limits, by figure: a parameter (offset, gain, c2 ...), PARAMETER.half_width, a derived figure, or residual_sd, r_squared, adj_r_squared, condition_number, runs_p, runs_z.")
+            new("limits", ValueKind.NamedMaps, "Specification limits, by figure: a parameter (offset, gain, c2 ...), PARAMETER.half_width, a derived figure, a fit figure (residual_sd, r_squared, adj_r_squared, condition_number, runs_p, runs_z), a diagnostic (dw_p, sw_p, ad_p, bp_p, lof_p, curvature_p, max_abs_rstudent, outlier_p ...) or a figure of merit (nonlinearity_terminal_pct, nonlinearity_ls_pct, nonlinearity_minimax_pct, hysteresis_pct, nonrepeatability_pct, llf ...); the last two kinds take rule: simple only.")
             {
                 Children =
                 [
@@ -171,6 +185,18 @@ public static class RecipeSchema
                     new("max_failed_percent", ValueKind.Number, "More failed bootstrap resamples than this % of B is a reason to retest; required when a limit judges a bootstrap interval.") { Minimum = 0, Maximum = 100 },
                 ],
             },
+            new("set_points", ValueKind.Map, "How set points are told apart, for the lack-of-fit test and the figures of merit.")
+            {
+                Children = [new("tolerance", ValueKind.Number, "Stimulus values within this of their neighbour (in stimulus order) are one set point, in stimulus units; 0 groups equal values only.") { Required = true, Minimum = 0 }],
+            },
+            new("nominal", ValueKind.Map, "The part's nominal transfer curve, output = offset + gain * stimulus: the zero, span and largest errors are taken against it.")
+            {
+                Children =
+                [
+                    new("offset", ValueKind.Number, "Nominal output at zero stimulus, in output units.") { Required = true },
+                    new("gain", ValueKind.Number, "Nominal sensitivity, output units per stimulus unit.") { Required = true },
+                ],
+            },
             new("gates", ValueKind.Map, "Residual-structure gates.")
             {
                 Children =
@@ -178,6 +204,15 @@ public static class RecipeSchema
                     new("runs_test", ValueKind.Map, "The runs test on the signs of the residuals in stimulus order.")
                     {
                         Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5 }],
+                    },
+                    .. FloorGates.Select(g => new KeySpec(g.Key, ValueKind.Map, g.Description) { Children = [PMin("its p-value")] }),
+                    new("normality", ValueKind.Map, "A normality test of the residuals.")
+                    {
+                        Children =
+                        [
+                            new("test", ValueKind.Text, "shapiro-wilk (Royston's W, n 3 to 5000) or anderson-darling (Stephens' A*, n of at least 8).") { Required = true, Choices = NormalityTests },
+                            PMin("the test's p-value"),
+                        ],
                     },
                 ],
             },

@@ -85,8 +85,9 @@ public sealed class LinearResampler
         _intercept = fit.Model.HasIntercept;
         _stimulus = fit.Stimulus.ToArray();
         _fitted = fit.Fitted.ToArray();
-        // A weighted fit is resampled in its whitened coordinates: rows and residuals scaled by sqrt(w).
-        _residuals = fit.IsWeighted ? fit.WeightedResiduals.ToArray() : fit.Residuals.ToArray();
+        // A weighted fit is resampled in its whitened coordinates: rows and residuals scaled by sqrt(w)
+        // (for an unweighted fit the weighted residuals are the residuals).
+        _residuals = fit.WeightedResiduals.ToArray();
 
         var (q, m) = Factorise(fit);
         _q = q;
@@ -772,15 +773,12 @@ public sealed class LinearResampler
         var scaling = fit.Scaling;
         var basis = new double[n * p];
         var row = new double[p];
-        var point = new double[fit.InputCount];
         for (var i = 0; i < n; i++)
         {
-            fit.Point(i, point);
-            model.FillScaledBasis(point, scaling, row);
-            var rowScale = fit.IsWeighted ? Math.Sqrt(fit.Weights[i]) : 1.0;
+            fit.FillDesignRow(i, row);
             for (var j = 0; j < p; j++)
             {
-                basis[(j * n) + i] = rowScale * row[j];
+                basis[(j * n) + i] = row[j];
             }
         }
 

@@ -1,0 +1,67 @@
+using StandFit.Core.Fitting;
+using StandFit.Core.Ingest;
+using StandFit.Core.Merit;
+
+namespace StandFit.Core.Diagnostics;
+
+/// <summary>What the diagnostics need beyond the fit: how set points are told apart, and the nominal curve.</summary>
+public sealed record DiagnosticsOptions
+{
+    public static DiagnosticsOptions Default { get; } = new();
+
+    /// <summary>Stimulus values within this of their neighbour are one set point (0: exactly equal values only).</summary>
+    public double SetPointTolerance { get; init; }
+
+    /// <summary>The part's nominal transfer curve, for the errors against it; null: those figures are not computed.</summary>
+    public NominalLine? Nominal { get; init; }
+}
+
+/// <summary>
+/// Every residual diagnostic of one fit, computed once: the structure tests (runs in acquisition
+/// order, Durbin-Watson, lag-1 autocorrelation, lack of fit, curvature, Breusch-Pagan, Shapiro-Wilk,
+/// Anderson-Darling, moments), the per-point figures and the outlier test, the residual histogram,
+/// and the figures of merit of the sweep. The runs test in stimulus order is the unit's existing
+/// runs test and is not repeated here.
+/// </summary>
+public sealed record ResidualDiagnostics(
+    RunsTestResult RunsByAcquisition,
+    DurbinWatsonResult DurbinWatson,
+    AutocorrelationResult Autocorrelation,
+    SetPointGrouping SetPoints,
+    LackOfFitResult LackOfFit,
+    CurvatureResult Curvature,
+    BreuschPaganResult BreuschPagan,
+    ShapiroWilkResult ShapiroWilk,
+    AndersonDarlingResult AndersonDarling,
+    MomentsResult Moments,
+    PointDiagnostics Points,
+    OutlierTestResult Outliers,
+    ResidualHistogram Histogram,
+    FiguresOfMerit? Merit)
+{
+    /// <summary>All diagnostics of <paramref name="fit"/>; <paramref name="legs"/> are the sweep's (one per point).</summary>
+    public static ResidualDiagnostics Compute(FitResult fit, ReadOnlySpan<Leg> legs, DiagnosticsOptions options)
+    {
+        var residuals = fit.WeightedResiduals.AsSpan();
+        var design = DesignBasis.Of(fit);
+        var acquisition = ResidualOrders.ByAcquisition(fit.Count);
+        var groups = Diagnostics.SetPoints.Group(fit.Stimulus.AsSpan(), options.SetPointTolerance);
+        var points = Influence.Points(fit);
+        return new ResidualDiagnostics(
+            RunsTest.Compute(residuals, acquisition),
+            Diagnostics.DurbinWatson.Compute(residuals, design, null),
+            Diagnostics.Autocorrelation.Lag1(residuals),
+            groups,
+            Diagnostics.LackOfFit.Compute(fit, groups),
+            Diagnostics.Curvature.Compute(fit, design),
+            Diagnostics.BreuschPagan.Compute(fit, design),
+            Diagnostics.ShapiroWilk.Compute(residuals),
+            Diagnostics.AndersonDarling.Compute(residuals),
+            MomentsResult.Of(residuals),
+            points,
+            Influence.OutlierTest(fit, points),
+            ResidualHistogram.FreedmanDiaconis(residuals),
+            // The figures of merit describe an output against one stimulus: none for a model of several inputs.
+            fit.InputCount == 1 ? FiguresOfMerit.Compute(fit.Stimulus.AsSpan(), fit.Output.AsSpan(), legs, groups, fit.ResidualSd, options.Nominal) : null);
+    }
+}
