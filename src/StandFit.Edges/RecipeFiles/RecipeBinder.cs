@@ -661,7 +661,8 @@ public static class RecipeBinder
             {
                 if (a >= b)
                 {
-                    rangeMap.Sink.Add(RecipeCodes.Contradiction, Messages.MinAboveMax(rangeMap.Where, Numbers.Format(a), Numbers.Format(b)), rangeMap.Node("min"));
+                    var message = a == b ? Messages.EmptyRange(rangeMap.Where, Numbers.Format(a)) : Messages.MinAboveMax(rangeMap.Where, Numbers.Format(a), Numbers.Format(b));
+                    rangeMap.Sink.Add(RecipeCodes.Contradiction, message, rangeMap.Node("min"));
                 }
                 else
                 {

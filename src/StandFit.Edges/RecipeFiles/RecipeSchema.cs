@@ -34,6 +34,8 @@ public sealed record KeySpec(string Name, ValueKind Kind, string Description)
 
     public bool ExclusiveMinimum { get; init; }
 
+    public bool ExclusiveMaximum { get; init; }
+
     public ImmutableArray<string> ChildNames => [.. Children.Select(c => c.Name)];
 
     public KeySpec Child(string name) => Children.FirstOrDefault(c => c.Name == name) ?? throw new InvalidOperationException($"The recipe schema has no key '{name}' under '{Name}'.");
@@ -159,7 +161,7 @@ public static class RecipeSchema
                 [
                     new("runs_test", ValueKind.Map, "The runs test on the signs of the residuals in stimulus order.")
                     {
-                        Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5 }],
+                        Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true }],
                     },
                 ],
             },
