@@ -58,6 +58,23 @@ public sealed class RecipeCatalog
         return SweepFormat.Standard;
     }
 
+    /// <summary>
+    /// The part the leading metadata names when no recipe in force lists it (what <c>watch</c> holds
+    /// the unit for), or null: no part named (bad input, rejected), or a recipe lists it.
+    /// </summary>
+    public string? UncoveredPart(ImmutableArray<MetadataEntry> metadata)
+    {
+        foreach (var m in metadata)
+        {
+            if (m.Key == MetadataKeys.Part)
+            {
+                return m.Value.Length == 0 || _byPart.ContainsKey(m.Value) ? null : m.Value;
+            }
+        }
+
+        return null;
+    }
+
     /// <summary>The hashes of the recipe files in force, in name order: what changed between two loads.</summary>
     public string Fingerprint => string.Join(",", Recipes.Select(r => r.SourceFile + "=" + r.ContentHash));
 
