@@ -102,6 +102,7 @@ public static class Messages
     public static string ModelTakesOneInput(string model, int inputs) => F($"model type '{model}' takes one stimulus column, but 'columns.stimulus' names {inputs}; name one column, or use type 'basis' for a model of several inputs.");
     public static string TooManyInputs(int inputs, int limit) => F($"'columns.stimulus' names {inputs} columns; at most {limit} are allowed.");
     public static string DuplicateInput(string column, int first) => F($"column '{column}' is already stimulus {first} (header names are matched ignoring case); name each stimulus column once.");
+    public static string ColumnInTwoRoles(string column, string role, string firstRole) => F($"column '{column}' is named as the {role} column, but it is already the {firstRole} column (header names are matched ignoring case); a column has one role. Name the right column for each.");
     public static string UnitCountMismatch(int units, int inputs) => F($"'units.stimulus' gives {units} unit(s) for {inputs} stimulus column(s); give one unit per stimulus column, in the same order (a list when there are several).");
     public static string TermSyntax(string where, string term, int position, string expected) => F($"{where}: term '{term}' is not understood at character {position}: expected {expected}. Terms are 1, x, x^k, 1/x, sqrt(x), ln(x), ln(x)^k and products such as x1*x2.");
     public static string TermUnknownFunction(string where, string term, string function, string? suggestion) =>
