@@ -52,7 +52,7 @@ internal static class WatchCommand
         Pipeline pipeline;
         try
         {
-            pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System);
+            pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System, holdUncoveredParts: true);
         }
         catch (WorkerBusyException e)
         {

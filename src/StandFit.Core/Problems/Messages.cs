@@ -43,11 +43,14 @@ public static class Messages
     public static string NoPartMetadata(string key) => F($"the file has no '# {key}: ...' line, so no recipe can be chosen. Add the line to the stand's export.");
 
     // ---- recipes and configuration -----------------------------------------------------------
-    public static string RecipeYamlSyntax(string detail) => F($"this is not valid YAML: {detail}. Check indentation and colons near this place.");
+    public static string RecipeYamlSyntax(string detail) => F($"this is not valid YAML: {detail.TrimEnd().TrimEnd('.')}. Check indentation and colons near this place.");
     public static string RecipeMultipleDocuments() => "a recipe file holds one YAML document; remove the second '---' and what follows, or move it to its own file.";
     public static string RecipeAliasRefused() => "anchors and aliases ('&name', '*name') are not supported in recipes; write the values out.";
     public static string RecipeTagRefused(string tag) => F($"YAML tags such as '{tag}' are not supported in recipes; remove the tag.");
     public static string RecipeComplexKey() => "a key must be plain text.";
+    public static string RecipeUtf16File() => "the recipe file is UTF-16 text; recipe files must be UTF-8. Save it as UTF-8 in your editor.";
+    public static string RecipeNotText(int offset) => F($"byte {offset} is a NUL or control byte: the file is not UTF-8 text (UTF-16 without a byte-order mark, or not text at all). Save the recipe as UTF-8 text.");
+    public static string RecipeInvalidUtf8(int offset) => F($"byte {offset} is not valid UTF-8 (a legacy code page such as Windows-1252?); recipe files must be UTF-8. Save the file as UTF-8 in your editor and check the characters here.");
     public static string RecipeEmptyFile() => "the recipe file is empty; write at least 'recipe:', 'parts:', 'columns:', 'model:' and 'confidence:'.";
     public static string UnknownKey(string key, string where, string? suggestion, IEnumerable<string> known) =>
         suggestion is not null
@@ -76,7 +79,14 @@ public static class Messages
     public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at' or 'value_at'.");
     public static string DerivedNameClash(string name) => F($"derived figure '{name}' has the name of a figure the fit already produces; choose another name.");
     public static string PartsNeeded() => "a recipe that is not 'family: true' needs 'parts' (the part numbers it judges).";
-    public static string FamilyNotFound(string name, IEnumerable<string> known) => F($"'extends: {name}' names no family recipe in this folder; the family recipes are: {string.Join(", ", known)}.");
+    public static string FamilyNotFound(string name, IEnumerable<string> known)
+    {
+        var families = string.Join(", ", known);
+        return families.Length > 0
+            ? F($"'extends: {name}' names no family recipe in this folder; the family recipes are: {families}.")
+            : F($"'extends: {name}' names no family recipe in this folder, and the folder holds none at all (a family recipe says 'family: true'). Add the family's file to the folder, or remove 'extends'.");
+    }
+
     public static string FamilyCycle(string name) => F($"'extends: {name}' leads back to this recipe; a family chain must end.");
     public static string NotAnInteger(string where, string shown) => F($"{where} must be a whole number, not '{shown}'.");
     public static string OutOfRange(string where, string shown, string range) => F($"{where} is {shown}; it must be {range}.");
@@ -85,6 +95,7 @@ public static class Messages
             ? F($"{where} is '{shown}'; did you mean '{suggestion}'? The choices are: {string.Join(", ", choices)}.")
             : F($"{where} is '{shown}'; the choices are: {string.Join(", ", choices)}.");
     public static string MinAboveMax(string where, string min, string max) => F($"{where} has min {min} above max {max}; swap them or fix one.");
+    public static string EmptyRange(string where, string value) => F($"{where} has min and max both {value}, which is no range at all; make min the lower end and max the upper end.");
     public static string LimitNeedsBound(string where) => F($"{where} needs 'min', 'max' or both.");
     public static string UnknownFigure(string figure, string model, IEnumerable<string> modelFigures, string? suggestion) =>
         F($"limit on '{figure}', but model {model} produces no such figure{(suggestion is null ? "" : F($" (did you mean '{suggestion}'?)"))}; the model's own figures are: {string.Join(", ", modelFigures)}. The fit figures, residual diagnostics and figures of merit every model has are listed in docs/recipes.md, 'Figures a limit can name'.");
@@ -93,6 +104,7 @@ public static class Messages
     public static string ModelTakesOneInput(string model, int inputs) => F($"model type '{model}' takes one stimulus column, but 'columns.stimulus' names {inputs}; name one column, or use type 'basis' for a model of several inputs.");
     public static string TooManyInputs(int inputs, int limit) => F($"'columns.stimulus' names {inputs} columns; at most {limit} are allowed.");
     public static string DuplicateInput(string column, int first) => F($"column '{column}' is already stimulus {first} (header names are matched ignoring case); name each stimulus column once.");
+    public static string ColumnInTwoRoles(string column, string role, string firstRole) => F($"column '{column}' is named as the {role} column, but it is already the {firstRole} column (header names are matched ignoring case); a column has one role. Name the right column for each.");
     public static string UnitCountMismatch(int units, int inputs) => F($"'units.stimulus' gives {units} unit(s) for {inputs} stimulus column(s); give one unit per stimulus column, in the same order (a list when there are several).");
     public static string TermSyntax(string where, string term, int position, string expected) => F($"{where}: term '{term}' is not understood at character {position}: expected {expected}. Terms are 1, x, x^k, 1/x, sqrt(x), ln(x), ln(x)^k and products such as x1*x2.");
     public static string TermUnknownFunction(string where, string term, string function, string? suggestion) =>

@@ -24,6 +24,12 @@ public static partial class Log
     [LoggerMessage(EventId = 1005, Level = LogLevel.Warning, Message = "Unit from {SourceFile} is a duplicate of {UnitKey} (first published {FirstAt}, {FirstRuling}); not judged again, no new summary row")]
     public static partial void UnitDuplicate(ILogger logger, string sourceFile, string unitKey, string firstAt, string firstRuling);
 
+    [LoggerMessage(EventId = 1006, Level = LogLevel.Warning, Message = "Unit from {SourceFile} names part {Part}, which no recipe in force lists; it is held in the claim folder, not judged and not rejected, until a recipe lists the part")]
+    public static partial void UnitHeldNoRecipe(ILogger logger, string sourceFile, string part);
+
+    [LoggerMessage(EventId = 1007, Level = LogLevel.Information, Message = "Unit from {SourceFile}, held for want of a recipe for part {Part}, is judged now that a recipe lists it")]
+    public static partial void UnitHeldReleased(ILogger logger, string sourceFile, string part);
+
     [LoggerMessage(EventId = 2001, Level = LogLevel.Information, Message = "Batch of {Count} units published: {Passed} pass, {Failed} fail, {Retest} retest, {Rejected} rejected")]
     public static partial void BatchPublished(ILogger logger, int count, int passed, int failed, int retest, int rejected);
 

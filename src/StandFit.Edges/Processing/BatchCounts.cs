@@ -33,7 +33,12 @@ public sealed class BatchCounts
     /// <summary>Inputs whose unit key was already published: recorded as duplicates, not judged again.</summary>
     public int Duplicates { get; private set; }
 
+    /// <summary>Inputs held for the first time because no recipe lists their part (<c>watch</c>): not judged, not counted in <see cref="Processed"/>.</summary>
+    public int HeldForRecipe { get; private set; }
+
     public void AddSkipped() => Skipped++;
+
+    public void AddHeldForRecipe() => HeldForRecipe++;
 
     public void AddDuplicate() => Duplicates++;
 
@@ -46,5 +51,6 @@ public sealed class BatchCounts
         Rejected += other.Rejected;
         Skipped += other.Skipped;
         Duplicates += other.Duplicates;
+        HeldForRecipe += other.HeldForRecipe;
     }
 }

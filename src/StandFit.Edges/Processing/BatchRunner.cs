@@ -5,6 +5,7 @@ using StandFit.Core.Problems;
 using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
 using StandFit.Edges.Outputs;
+using StandFit.Edges.RecipeFiles;
 
 namespace StandFit.Edges.Processing;
 
@@ -20,7 +21,10 @@ namespace StandFit.Edges.Processing;
 /// written again, inputs moved on, with no new row. So a crash at any instant repeats no row and
 /// loses no input. Failure policy per stage: reading or judging a unit never stops the batch; an
 /// output failure throws before any input of the uncommitted batch is moved (inputs stay claimed;
-/// try again later); the pass/fail log failing throws <see cref="AuditSinkException"/>.
+/// try again later); the pass/fail log failing throws <see cref="AuditSinkException"/>. With
+/// <see cref="HoldUncoveredParts"/> (<c>watch</c>), a claimed unit whose part no recipe lists is
+/// held: it stays claimed, unjudged and unpublished, is warned about once, and is read again on
+/// the first pass under other recipes; without it (<c>run</c>), it is rejected (<c>input.no_recipe</c>).
 /// </summary>
 public sealed class BatchRunner(
     UnitProcessor processor,
@@ -37,6 +41,9 @@ public sealed class BatchRunner(
     ILogger logger)
 {
     private readonly Dictionary<string, long> _unreadableLogged = new(StringComparer.Ordinal);
+
+    // Claimed inputs held for want of a recipe: claim path -> (part, the recipes they were last read under).
+    private readonly Dictionary<string, (string Part, RecipeCatalog Under)> _held = new(StringComparer.Ordinal);
     private PublishJournal? _journal;
     private int _batchSequence;
 
@@ -45,6 +52,25 @@ public sealed class BatchRunner(
 
     /// <summary>Called once per duplicate input, with the line written for it.</summary>
     public Action<SummaryRecord>? OnDuplicate { get; init; }
+
+    /// <summary>
+    /// <c>watch</c>: a claimed unit whose part no recipe in force lists is held in the claim folder
+    /// (not judged, not rejected, no row, no pass/fail line) until a recipe lists the part. Off
+    /// (<c>run</c>, which must finish): such a unit is rejected with <c>input.no_recipe</c>.
+    /// </summary>
+    public bool HoldUncoveredParts { get; init; }
+
+    /// <summary>Inputs held now because no recipe lists their part.</summary>
+    public int HeldForRecipe
+    {
+        get
+        {
+            lock (_held)
+            {
+                return _held.Count;
+            }
+        }
+    }
 
     /// <summary>How often the same unreadable input is logged again.</summary>
     public TimeSpan RepeatLogInterval { get; init; } = TimeSpan.FromMinutes(5);
@@ -87,7 +113,7 @@ public sealed class BatchRunner(
 
         var total = FinishCommitted();
         Journal.Refresh();
-        var leftovers = intake.Leftovers();
+        var leftovers = SkipHeld(intake.Leftovers());
         for (var start = 0; start < leftovers.Count && !stop.IsCancellationRequested; start += batchSize)
         {
             total.Add(await ProcessBatchAsync([.. leftovers.Skip(start).Take(batchSize)], stop).ConfigureAwait(false));
@@ -103,6 +129,77 @@ public sealed class BatchRunner(
         }
 
         return total;
+    }
+
+    /// <summary>
+    /// The leftovers to process: all but the inputs held for want of a recipe that were last read
+    /// under the recipes still in force (nothing has changed for them). Held inputs that are gone
+    /// (removed by hand) are forgotten.
+    /// </summary>
+    private List<InputFile> SkipHeld(IReadOnlyList<InputFile> leftovers)
+    {
+        lock (_held)
+        {
+            if (_held.Count == 0)
+            {
+                return [.. leftovers];
+            }
+
+            var present = leftovers.Select(i => i.Path).ToHashSet(StringComparer.Ordinal);
+            foreach (var gone in _held.Keys.Where(k => !present.Contains(k)).ToList())
+            {
+                _held.Remove(gone);
+            }
+
+            var now = processor.Recipes;
+            return [.. leftovers.Where(i => !(_held.TryGetValue(i.Path, out var h) && ReferenceEquals(h.Under, now)))];
+        }
+    }
+
+    /// <summary>
+    /// Holds the unit when it names a part no recipe lists and holding is on: true when held. The
+    /// warning is logged once per input, when it is first held.
+    /// </summary>
+    private bool Hold(ProcessedUnit unit, BatchCounts counts)
+    {
+        if (!HoldUncoveredParts || unit.UncoveredPart is not { } part || unit.Input.Claim is null || unit.Catalog is null)
+        {
+            return false;
+        }
+
+        bool first;
+        lock (_held)
+        {
+            first = !_held.ContainsKey(unit.Input.Path);
+            _held[unit.Input.Path] = (part, unit.Catalog);
+        }
+
+        if (first)
+        {
+            counts.AddHeldForRecipe();
+            var name = Printable.Of(unit.Input.Name);
+            var shown = Printable.Of(part);
+            Log.UnitHeldNoRecipe(logger, name, shown);
+        }
+
+        return true;
+    }
+
+    /// <summary>Forgets a held input that has now been judged, and says so.</summary>
+    private void Unhold(ProcessedUnit unit)
+    {
+        string? part;
+        lock (_held)
+        {
+            part = _held.Remove(unit.Input.Path, out var h) ? h.Part : null;
+        }
+
+        if (part is not null)
+        {
+            var name = Printable.Of(unit.Input.Name);
+            var shown = Printable.Of(part);
+            Log.UnitHeldReleased(logger, name, shown);
+        }
     }
 
     /// <summary>Finishes, from the journal alone, the batches committed before a crash, a stop or an output fault; counts the inputs it moved on.</summary>
@@ -195,7 +292,16 @@ public sealed class BatchRunner(
             }
         }
 
-        var units = processed.OfType<ProcessedUnit>().ToList();
+        var units = new List<ProcessedUnit>(batch.Count);
+        foreach (var unit in processed.OfType<ProcessedUnit>())
+        {
+            if (!Hold(unit, counts))
+            {
+                Unhold(unit);
+                units.Add(unit);
+            }
+        }
+
         if (units.Count == 0)
         {
             return counts;

@@ -40,13 +40,15 @@ public sealed class Pipeline : IDisposable
     /// <summary>The claim folder (inbox mode), or null (read in place).</summary>
     public ClaimFolder? Claims { get; }
 
+    /// <summary>Builds the pipeline. <paramref name="holdUncoveredParts"/>: <c>watch</c> holds a unit whose part no recipe lists until one does (see <see cref="BatchRunner.HoldUncoveredParts"/>); <c>run</c> rejects it.</summary>
     public static Pipeline Build(
         StandFitOptions options,
         ILoggerFactory loggers,
         DispositionMode mode,
         TimeProvider clock,
         Action<SummaryRecord>? onPublished = null,
-        Action<SummaryRecord>? onDuplicate = null)
+        Action<SummaryRecord>? onDuplicate = null,
+        bool holdUncoveredParts = false)
     {
         var logger = loggers.CreateLogger("StandFit");
         var workerLock = WorkerLock.Acquire(options.Output, options.WorkerId);
@@ -79,6 +81,7 @@ public sealed class Pipeline : IDisposable
             {
                 OnPublished = onPublished,
                 OnDuplicate = onDuplicate,
+                HoldUncoveredParts = holdUncoveredParts && claims is not null,
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
             };
             return new Pipeline(workerLock, recipes, processor, runner, claims);

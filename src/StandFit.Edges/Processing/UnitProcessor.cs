@@ -12,7 +12,14 @@ using StandFit.Edges.RecipeFiles;
 namespace StandFit.Edges.Processing;
 
 /// <summary>One input read and judged: the file's bytes' hash and the evaluation.</summary>
-public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation);
+public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation)
+{
+    /// <summary>The part the file names when no recipe in force lists it (<c>watch</c> holds such a unit); null otherwise.</summary>
+    public string? UncoveredPart { get; init; }
+
+    /// <summary>The recipes the unit was read and judged under.</summary>
+    public RecipeCatalog? Catalog { get; init; }
+}
 
 /// <summary>
 /// Reads one sweep file, picks its recipe and evaluates it. Failure policy: bad input becomes a
@@ -33,11 +40,21 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
     /// <summary>Reads the input (its cell format chosen by the recipe its leading metadata names) and judges it.</summary>
     public ProcessedUnit Process(InputFile input)
     {
-        var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? recipes().FormatFor(metadata), input.Name);
-        return new ProcessedUnit(input, file, Evaluate(file));
+        var catalog = recipes();
+        var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? catalog.FormatFor(metadata), input.Name);
+        return new ProcessedUnit(input, file, Evaluate(file, catalog))
+        {
+            UncoveredPart = RecipeOverride is null ? catalog.UncoveredPart(file.Metadata) : null,
+            Catalog = catalog,
+        };
     }
 
-    public UnitEvaluation Evaluate(SweepFile file)
+    /// <summary>The recipes in force now.</summary>
+    public RecipeCatalog Recipes => recipes();
+
+    public UnitEvaluation Evaluate(SweepFile file) => Evaluate(file, recipes());
+
+    private UnitEvaluation Evaluate(SweepFile file, RecipeCatalog catalog)
     {
         try
         {
@@ -48,7 +65,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
             }
 
             var table = file.Table.Value;
-            var recipe = RecipeOverride is not null ? Result<Recipe>.Success(RecipeOverride) : recipes().Match(table);
+            var recipe = RecipeOverride is not null ? Result<Recipe>.Success(RecipeOverride) : catalog.Match(table);
             if (!recipe.IsSuccess)
             {
                 var identity = SweepAssembler.ReadIdentity(table);

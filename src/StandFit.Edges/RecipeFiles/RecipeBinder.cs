@@ -80,6 +80,16 @@ public static partial class RecipeBinder
         var format = ReadFormat(top);
         var confidence = ReadConfidence(top);
         var weights = ReadWeights(top);
+        if (columns is not null && weights?.Column is { } uncertainty && top.Node("weights") is YamlMap weightsMap)
+        {
+            var roles = columns.Inputs.Select(i => ("stimulus", i, (YamlNode)root)).ToList();
+            roles.AddRange(new[] { ("output", columns.Output), ("leg", columns.Leg), ("order", columns.Order) }.Where(r => r.Item2 is not null).Select(r => (r.Item1, r.Item2!, (YamlNode)root)));
+            roles.Add(("uncertainty ('weights.column')", uncertainty, weightsMap.Entries.First(e => e.Key.Text == "column").Value));
+            if (!CheckOneRole(roles, sink))
+            {
+                weights = null;
+            }
+        }
         var derived = ReadDerived(top, model);
         var decision = ReadDecision(top);
         var limits = ReadLimits(top, model, derived, decision);
@@ -172,8 +182,36 @@ public static partial class RecipeBinder
             }
         }
 
+        // One column, one role: a column read as both stimulus and output (or leg, or order) is a contradiction.
+        var roles = inputs.Select(i => ("stimulus", i.Text, i.Node)).ToList();
+        foreach (var (role, text) in new[] { ("output", output), ("leg", leg), ("order", order) })
+        {
+            if (text is not null)
+            {
+                roles.Add((role, text, columns.Node(role)!));
+            }
+        }
+
+        ok &= CheckOneRole(roles, columns.Sink);
         var count = Math.Clamp(inputs.Count, 1, MaxInputs);
         return !ok || output is null ? (null, count) : (new ColumnMap([.. inputs.Select(i => i.Text)], output, leg, order), count);
+    }
+
+    /// <summary>Reports each column named after an earlier one of another role (header names match ignoring case); true when none is.</summary>
+    private static bool CheckOneRole(List<(string Role, string Text, YamlNode Node)> roles, ProblemSink sink)
+    {
+        var ok = true;
+        for (var k = 1; k < roles.Count; k++)
+        {
+            var first = roles.FindIndex(r => string.Equals(r.Text, roles[k].Text, StringComparison.OrdinalIgnoreCase));
+            if (first < k && roles[first].Role != roles[k].Role)
+            {
+                sink.Add(RecipeCodes.Contradiction, Messages.ColumnInTwoRoles(roles[k].Text, roles[k].Role, roles[first].Role), roles[k].Node);
+                ok = false;
+            }
+        }
+
+        return ok;
     }
 
     /// <summary>A required key whose value is one text, or a non-empty list of texts.</summary>
@@ -680,7 +718,8 @@ public static partial class RecipeBinder
             {
                 if (a >= b)
                 {
-                    rangeMap.Sink.Add(RecipeCodes.Contradiction, Messages.MinAboveMax(rangeMap.Where, Numbers.Format(a), Numbers.Format(b)), rangeMap.Node("min"));
+                    var message = a == b ? Messages.EmptyRange(rangeMap.Where, Numbers.Format(a)) : Messages.MinAboveMax(rangeMap.Where, Numbers.Format(a), Numbers.Format(b));
+                    rangeMap.Sink.Add(RecipeCodes.Contradiction, message, rangeMap.Node("min"));
                 }
                 else
                 {

@@ -58,6 +58,23 @@ public sealed class RecipeCatalog
         return SweepFormat.Standard;
     }
 
+    /// <summary>
+    /// The part the leading metadata names when no recipe in force lists it (what <c>watch</c> holds
+    /// the unit for), or null: no part named (bad input, rejected), or a recipe lists it.
+    /// </summary>
+    public string? UncoveredPart(ImmutableArray<MetadataEntry> metadata)
+    {
+        foreach (var m in metadata)
+        {
+            if (m.Key == MetadataKeys.Part)
+            {
+                return m.Value.Length == 0 || _byPart.ContainsKey(m.Value) ? null : m.Value;
+            }
+        }
+
+        return null;
+    }
+
     /// <summary>The hashes of the recipe files in force, in name order: what changed between two loads.</summary>
     public string Fingerprint => string.Join(",", Recipes.Select(r => r.SourceFile + "=" + r.ContentHash));
 
@@ -110,50 +127,73 @@ public sealed class RecipeCatalog
         }
 
         var families = sources.Where(s => s.IsFamily && s.Name is not null).GroupBy(s => s.Name!, StringComparer.Ordinal).ToDictionary(g => g.Key, g => g.First(), StringComparer.Ordinal);
-        var recipes = ImmutableArray.CreateBuilder<Recipe>();
-        var effective = ImmutableDictionary.CreateBuilder<Recipe, YamlMap>(ReferenceEqualityComparer.Instance);
-        var partOwner = new Dictionary<string, string>(StringComparer.OrdinalIgnoreCase);
+
+        // Every file is bound on its whole chain, so a family's own problems come back from each of
+        // its variants: each problem is reported once. A recipe whose family (or one of its families)
+        // has problems is not in force either, even when it overrides the broken key.
+        var reported = new HashSet<Problem>();
+        void Report(IEnumerable<Problem> found)
+        {
+            foreach (var problem in found)
+            {
+                if (reported.Add(problem))
+                {
+                    problems.Add(problem);
+                }
+            }
+        }
+
+        var resolved = new List<(Source Source, List<Source> Chain, YamlMap? Merged, Recipe? Bound)>();
+        var ok = new HashSet<string>(StringComparer.Ordinal);
         foreach (var source in sources)
         {
             var sink = new ProblemSink(source.File);
-            var (merged, hash) = Resolve(source, families, sink);
+            var (merged, hash, chain) = Resolve(source, families, sink);
             if (merged is null)
             {
-                problems.AddRange(sink.Problems);
+                Report(sink.Problems);
+                resolved.Add((source, chain, null, null));
                 continue;
             }
 
             var bound = RecipeBinder.Bind(merged, sink, hash);
-            if (!bound.IsSuccess)
+            Report(bound.Problems);
+            resolved.Add((source, chain, merged, bound.IsSuccess ? bound.Value : null));
+            if (bound.IsSuccess)
             {
-                problems.AddRange(bound.Problems);
-                continue;
+                ok.Add(source.File);
             }
+        }
 
-            if (bound.Value.IsFamily)
+        var recipes = ImmutableArray.CreateBuilder<Recipe>();
+        var effective = ImmutableDictionary.CreateBuilder<Recipe, YamlMap>(ReferenceEqualityComparer.Instance);
+        var partOwner = new Dictionary<string, string>(StringComparer.OrdinalIgnoreCase);
+        foreach (var (source, chain, merged, bound) in resolved)
+        {
+            if (bound is null || merged is null || bound.IsFamily || !chain.All(c => ok.Contains(c.File)))
             {
                 continue;
             }
 
             var duplicate = false;
-            foreach (var part in bound.Value.Parts)
+            foreach (var part in bound.Parts)
             {
                 if (partOwner.TryGetValue(part, out var other))
                 {
-                    problems.Add(new Problem(RecipeCodes.DuplicatePart, Messages.DuplicatePart(part, other), SourceLocation.WholeFile(source.File)));
+                    Report([new Problem(RecipeCodes.DuplicatePart, Messages.DuplicatePart(part, other), SourceLocation.WholeFile(source.File))]);
                     duplicate = true;
                 }
             }
 
             if (!duplicate)
             {
-                foreach (var part in bound.Value.Parts)
+                foreach (var part in bound.Parts)
                 {
                     partOwner[part] = source.File;
                 }
 
-                recipes.Add(bound.Value);
-                effective[bound.Value] = merged;
+                recipes.Add(bound);
+                effective[bound] = merged;
             }
         }
 
@@ -188,10 +228,10 @@ public sealed class RecipeCatalog
             return null;
         }
 
-        var decoded = SweepFileReader.Decode(shown, bytes);
+        var decoded = Decode(shown, bytes);
         if (!decoded.IsSuccess)
         {
-            problems.AddRange(decoded.Problems.Select(p => p with { Code = RecipeCodes.Unreadable }));
+            problems.AddRange(decoded.Problems);
             return null;
         }
 
@@ -212,7 +252,57 @@ public sealed class RecipeCatalog
         return new Source(shown, root, Hashing.Sha256Hex(bytes), Scalar("recipe"), Scalar("extends"), Scalar("family") == "true");
     }
 
-    private static (YamlMap? Merged, string Hash) Resolve(Source source, Dictionary<string, Source> families, ProblemSink sink)
+    /// <summary>The file's keys merged onto its families' (null after a problem), the chained hash, and the chain: the file, then its families up to the root.</summary>
+    private static readonly UTF8Encoding StrictUtf8 = new(encoderShouldEmitUTF8Identifier: false, throwOnInvalidBytes: true);
+
+    /// <summary>
+    /// A recipe file's text: UTF-8, with or without a byte-order mark. Anything else is
+    /// <c>recipe.unreadable</c>, told as a recipe author needs it (save the file as UTF-8), at the
+    /// line and column of the first bad byte when it has one.
+    /// </summary>
+    private static Result<string> Decode(string shown, byte[] bytes)
+    {
+        ReadOnlySpan<byte> body = bytes;
+        if (body.Length >= 2 && ((body[0] == 0xFF && body[1] == 0xFE) || (body[0] == 0xFE && body[1] == 0xFF)))
+        {
+            return Result<string>.Failure(new Problem(RecipeCodes.Unreadable, Messages.RecipeUtf16File(), SourceLocation.WholeFile(shown)));
+        }
+
+        if (body.Length >= 3 && body[0] == 0xEF && body[1] == 0xBB && body[2] == 0xBF)
+        {
+            body = body[3..];
+        }
+
+        for (var i = 0; i < body.Length; i++)
+        {
+            if (body[i] < 0x20 && body[i] is not (byte)'\n' and not (byte)'\r' and not (byte)'\t')
+            {
+                return Result<string>.Failure(new Problem(RecipeCodes.Unreadable, Messages.RecipeNotText(i), At(shown, body, i)));
+            }
+        }
+
+        try
+        {
+            return StrictUtf8.GetString(body);
+        }
+        catch (DecoderFallbackException e)
+        {
+            var offset = Math.Max(0, e.Index);
+            return Result<string>.Failure(new Problem(RecipeCodes.Unreadable, Messages.RecipeInvalidUtf8(offset), At(shown, body, offset)));
+        }
+    }
+
+    /// <summary>The line and column (in characters) of a byte offset, counting the valid text before it.</summary>
+    private static SourceLocation At(string shown, ReadOnlySpan<byte> body, int offset)
+    {
+        var before = body[..Math.Min(offset, body.Length)];
+        var lineStart = before.LastIndexOf((byte)'\n') + 1;
+        var line = before.Count((byte)'\n') + 1;
+        var prefix = Encoding.UTF8.GetString(before[lineStart..]);
+        return SourceLocation.At(shown, line, prefix.Length + 1);
+    }
+
+    private static (YamlMap? Merged, string Hash, List<Source> Chain) Resolve(Source source, Dictionary<string, Source> families, ProblemSink sink)
     {
         var chain = new List<Source> { source };
         var current = source;
@@ -222,13 +312,13 @@ public sealed class RecipeCatalog
             if (!families.TryGetValue(parent, out var family))
             {
                 sink.Add(RecipeCodes.UnknownFamily, Messages.FamilyNotFound(parent, families.Keys.Order(StringComparer.Ordinal)), node);
-                return (null, "");
+                return (null, "", chain);
             }
 
             if (chain.Contains(family))
             {
                 sink.Add(RecipeCodes.UnknownFamily, Messages.FamilyCycle(parent), node);
-                return (null, "");
+                return (null, "", chain);
             }
 
             chain.Add(family);
@@ -244,30 +334,43 @@ public sealed class RecipeCatalog
             hash = Hashing.Sha256Hex(Encoding.UTF8.GetBytes(hash + ":" + chain[i].Hash));
         }
 
-        return (merged, hash);
+        return (merged, hash, chain);
     }
 
-    /// <summary>The keys of <paramref name="over"/> on top of <paramref name="under"/>: mappings merge, anything else is replaced.</summary>
+    /// <summary>
+    /// The keys of <paramref name="over"/> on top of <paramref name="under"/>: mappings merge, anything
+    /// else is replaced. A key given twice in <paramref name="over"/> stays twice (the first merged,
+    /// the second after it as written), so that the binder reports it as a duplicate key wherever it
+    /// sits; a key given twice in <paramref name="under"/> is taken once (the family's own binding
+    /// reports it).
+    /// </summary>
     private static YamlMap Merge(YamlMap under, YamlMap over, bool inheriting)
     {
         var entries = new List<YamlEntry>();
+        var seen = new HashSet<string>(StringComparer.Ordinal);
         foreach (var entry in under.Entries)
         {
             // A family's own 'family' and 'extends' keys are not inherited.
-            if (inheriting && entry.Key.Text is "family" or "extends")
+            if ((inheriting && entry.Key.Text is "family" or "extends") || !seen.Add(entry.Key.Text))
             {
                 continue;
             }
 
-            var replacement = over.Entries.FirstOrDefault(e => e.Key.Text == entry.Key.Text);
-            entries.Add(replacement is null
-                ? entry
-                : replacement.Value is YamlMap overMap && entry.Value is YamlMap underMap
-                    ? new YamlEntry(replacement.Key, Merge(underMap, overMap, inheriting: false))
-                    : replacement);
+            var replacements = over.Entries.Where(e => e.Key.Text == entry.Key.Text).ToList();
+            if (replacements.Count == 0)
+            {
+                entries.Add(entry);
+                continue;
+            }
+
+            var first = replacements[0];
+            entries.Add(first.Value is YamlMap overMap && entry.Value is YamlMap underMap
+                ? new YamlEntry(first.Key, Merge(underMap, overMap, inheriting: false))
+                : first);
+            entries.AddRange(replacements.Skip(1));
         }
 
-        entries.AddRange(over.Entries.Where(e => !under.Entries.Any(u => u.Key.Text == e.Key.Text) || (inheriting && e.Key.Text is "family" or "extends")));
+        entries.AddRange(over.Entries.Where(e => !seen.Contains(e.Key.Text) || (inheriting && e.Key.Text is "family" or "extends")));
         return over with { Entries = [.. entries] };
     }
 

@@ -118,7 +118,7 @@ public static class RecipeJsonSchema
 
                 if (spec.Maximum is { } max)
                 {
-                    scalar["maximum"] = max;
+                    scalar[spec.ExclusiveMaximum ? "exclusiveMaximum" : "maximum"] = max;
                 }
 
                 return scalar;

@@ -34,6 +34,8 @@ public sealed record KeySpec(string Name, ValueKind Kind, string Description)
 
     public bool ExclusiveMinimum { get; init; }
 
+    public bool ExclusiveMaximum { get; init; }
+
     public ImmutableArray<string> ChildNames => [.. Children.Select(c => c.Name)];
 
     public KeySpec Child(string name) => Children.FirstOrDefault(c => c.Name == name) ?? throw new InvalidOperationException($"The recipe schema has no key '{name}' under '{Name}'.");
@@ -67,7 +69,7 @@ public static class RecipeSchema
     ];
 
     private static KeySpec PMin(string what) =>
-        new("p_min", ValueKind.Number, "The unit fails when " + what + " is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5 };
+        new("p_min", ValueKind.Number, "The unit fails when " + what + " is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true };
 
     private static readonly KeySpec RuleKey = new("rule", ValueKind.Text, "Decision rule: 'guarded' (guard band from the expanded uncertainty; undecided zone ruled retest) or 'simple' (the estimate inside the limits passes).") { Choices = Rules };
 
@@ -203,7 +205,7 @@ public static class RecipeSchema
                 [
                     new("runs_test", ValueKind.Map, "The runs test on the signs of the residuals in stimulus order.")
                     {
-                        Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5 }],
+                        Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true }],
                     },
                     .. FloorGates.Select(g => new KeySpec(g.Key, ValueKind.Map, g.Description) { Children = [PMin("its p-value")] }),
                     new("normality", ValueKind.Map, "A normality test of the residuals.")

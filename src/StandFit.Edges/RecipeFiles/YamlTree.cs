@@ -41,7 +41,7 @@ public static class YamlTree
             }
 
             parser.Consume<DocumentStart>();
-            var root = ReadNode(parser, file, last);
+            var root = ReadNode(parser, file, text, last);
             parser.Consume<DocumentEnd>();
             if (!parser.Accept<StreamEnd>(out _))
             {
@@ -67,7 +67,7 @@ public static class YamlTree
         }
     }
 
-    private static YamlNode ReadNode(IParser parser, string file, Mark[] last)
+    private static YamlNode ReadNode(IParser parser, string file, string text, Mark[] last)
     {
         var current = parser.Current ?? throw new RefusedYamlException(last[0], Messages.RecipeYamlSyntax("unexpected end of input"));
         last[0] = current.Start;
@@ -78,7 +78,7 @@ public static class YamlTree
             case NodeEvent { Anchor.IsEmpty: false } anchored:
                 throw new RefusedYamlException(anchored.Start, Messages.RecipeAliasRefused());
             case NodeEvent { Tag.IsEmpty: false } tagged when tagged is not Scalar { Tag.Value: "!" }:
-                throw new RefusedYamlException(tagged.Start, Messages.RecipeTagRefused(tagged.Tag.Value));
+                throw new RefusedYamlException(tagged.Start, Messages.RecipeTagRefused(WrittenTag(text, tagged.Start, tagged.Tag.Value)));
         }
 
         if (parser.TryConsume<Scalar>(out var scalar))
@@ -91,7 +91,7 @@ public static class YamlTree
             var items = ImmutableArray.CreateBuilder<YamlNode>();
             while (!parser.TryConsume<SequenceEnd>(out _))
             {
-                items.Add(ReadNode(parser, file, last));
+                items.Add(ReadNode(parser, file, text, last));
             }
 
             return new YamlList(items.ToImmutable(), (int)sequenceStart.Start.Line, (int)sequenceStart.Start.Column) { File = file };
@@ -102,19 +102,41 @@ public static class YamlTree
             var entries = ImmutableArray.CreateBuilder<YamlEntry>();
             while (!parser.TryConsume<MappingEnd>(out _))
             {
-                var key = ReadNode(parser, file, last);
+                var key = ReadNode(parser, file, text, last);
                 if (key is not YamlScalar keyScalar)
                 {
                     throw new RefusedYamlException(new Mark(0, key.Line, key.Column), Messages.RecipeComplexKey());
                 }
 
-                entries.Add(new YamlEntry(keyScalar, ReadNode(parser, file, last)));
+                entries.Add(new YamlEntry(keyScalar, ReadNode(parser, file, text, last)));
             }
 
             return new YamlMap(entries.ToImmutable(), (int)mappingStart.Start.Line, (int)mappingStart.Start.Column) { File = file };
         }
 
         throw new RefusedYamlException(current.Start, Messages.RecipeYamlSyntax("unexpected " + current.GetType().Name));
+    }
+
+    /// <summary>
+    /// The tag as the author wrote it ('!!float'), read from the text where the node starts; the
+    /// parser only has its expanded name ('tag:yaml.org,2002:float').
+    /// </summary>
+    private static string WrittenTag(string text, Mark start, string expanded)
+    {
+        var at = (int)Math.Clamp(start.Index, 0, text.Length);
+        if (at < text.Length && text[at] == '!')
+        {
+            var end = at;
+            while (end < text.Length && !char.IsWhiteSpace(text[end]) && text[end] is not (',' or '[' or ']' or '{' or '}'))
+            {
+                end++;
+            }
+
+            return text[at..end];
+        }
+
+        const string Core = "tag:yaml.org,2002:";
+        return expanded.StartsWith(Core, StringComparison.Ordinal) ? "!!" + expanded[Core.Length..] : expanded;
     }
 
     private static Result<YamlNode?> Problem(string file, Mark mark, string message) =>

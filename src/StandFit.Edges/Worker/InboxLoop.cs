@@ -39,6 +39,8 @@ public sealed record LoopSettings
 /// missing, read-only or full; the pass/fail log unwritable) is retried with backoff (doubling up to
 /// a minute) while the inputs stay claimed, logged once per interval, and clears by itself; a
 /// damaged journal or an unexpected exception ends the loop (the host then exits with code 5).
+/// A unit whose part no recipe lists is held by the runner (<see cref="BatchRunner.HoldUncoveredParts"/>)
+/// and judged on the first pass after a reload brings a recipe that lists it.
 /// </summary>
 public sealed class InboxLoop
 {
@@ -147,14 +149,14 @@ public sealed class InboxLoop
             _outputFault.Succeeded();
             Totals.Add(counts);
             Status.Add(counts, _clock.GetUtcNow().UtcDateTime);
-            Status.SetHeld(SafeHeld());
+            Status.SetHeld(SafeHeld(), _runner.HeldForRecipe);
             PassCompleted?.Invoke(counts);
         }
         catch (Exception e) when (e is IOException or UnauthorizedAccessException or AuditSinkException)
         {
             _outputFault.Failed(e);
             Status.SetError(e.Message, _clock.GetUtcNow().UtcDateTime);
-            Status.SetHeld(SafeHeld());
+            Status.SetHeld(SafeHeld(), _runner.HeldForRecipe);
             PassFailed?.Invoke(e);
             ok = false;
         }

@@ -15,6 +15,7 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
     private readonly Lock _gate = new();
     private readonly BatchCounts _counts = new();
     private int _held;
+    private int _awaitingRecipe;
     private string _state = "starting";
     private DateTime? _lastUnitAt;
     private DateTime? _lastErrorAt;
@@ -32,11 +33,13 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
         }
     }
 
-    public void SetHeld(int held)
+    /// <summary>Inputs in the claim folder not moved on yet, and how many of them wait for a recipe that lists their part.</summary>
+    public void SetHeld(int held, int awaitingRecipe = 0)
     {
         lock (_gate)
         {
             _held = held;
+            _awaitingRecipe = awaitingRecipe;
         }
     }
 
@@ -80,6 +83,7 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
                     Rejected = _counts.Rejected,
                     Duplicates = _counts.Duplicates,
                     Held = _held,
+                    AwaitingRecipe = _awaitingRecipe,
                 },
                 LastError = _lastError is null ? null : new LastErrorInfo { At = _lastErrorAt!.Value, Message = _lastError },
                 Memory = new MemoryInfo { WorkingSetBytes = Environment.WorkingSet, ManagedHeapBytes = GC.GetTotalMemory(forceFullCollection: false) },
@@ -155,6 +159,9 @@ public sealed class WorkerStatus(string workerId, string version, DateTime start
 
         [JsonPropertyName("held")]
         public int Held { get; set; }
+
+        [JsonPropertyName("awaiting_recipe")]
+        public int AwaitingRecipe { get; set; }
     }
 
     private sealed class LastErrorInfo

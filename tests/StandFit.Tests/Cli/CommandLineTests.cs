@@ -32,6 +32,40 @@ public sealed class CommandLineTests
     }
 
     [Fact]
+    public async Task Recipes_check_of_a_path_that_does_not_exist_is_a_usage_error_with_exit_code_two()
+    {
+        using var root = new TempFolder();
+
+        var outcome = await StandFitProcess.RunAsync(root.Path, Timeout, "recipes", "check", Path.Combine(root.Path, "no-such-folder"));
+
+        Assert.Equal(2, outcome.ExitCode);
+    }
+
+    [Fact]
+    public async Task Recipes_explain_prints_the_recipe_in_force_with_its_version_hash_and_each_values_origin()
+    {
+        var catalog = StandFit.Edges.RecipeFiles.RecipeCatalog.Load(DemoSet.Recipes);
+        var recipe = catalog.ForPart("KP-250")!;
+
+        var outcome = await StandFitProcess.RunAsync(RepoPaths.Root, Timeout, "recipes", "explain", "kp-250", "--recipes", DemoSet.Recipes);
+
+        Assert.Equal(0, outcome.ExitCode);
+        var lines = outcome.Output.Split('\n');
+        Assert.Equal($"# effective recipe for part kp-250: {recipe.Name} version {recipe.Version}, sha256 {recipe.ContentHash}", lines[0]);
+        Assert.Equal(catalog.Explain(recipe), string.Join('\n', lines.Skip(1)));
+        Assert.Contains("confidence: 0.95    # kp-250.yaml:", outcome.Output, StringComparison.Ordinal);
+    }
+
+    [Fact]
+    public async Task Recipes_explain_of_a_part_no_recipe_lists_exits_with_one()
+    {
+        var outcome = await StandFitProcess.RunAsync(RepoPaths.Root, Timeout, "recipes", "explain", "XYZ-9", "--recipes", DemoSet.Recipes);
+
+        Assert.Equal(1, outcome.ExitCode);
+        Assert.Contains("no recipe lists part 'XYZ-9'", outcome.Error, StringComparison.Ordinal);
+    }
+
+    [Fact]
     public async Task Inspect_json_prints_every_summary_field_and_writes_nothing()
     {
         using var root = new TempFolder();

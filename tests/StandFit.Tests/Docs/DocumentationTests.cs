@@ -183,6 +183,25 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
     }
 
     [Fact]
+    public void The_recipe_key_table_says_what_every_optional_key_means_when_absent_and_the_units_of_every_number()
+    {
+        var rows = CodeRows(Page("recipes.md"), "## Recipe keys").ToDictionary(r => r.Code, r => r.Cells, StringComparer.Ordinal);
+        foreach (var (path, spec) in Specs(RecipeSchema.Root, ""))
+        {
+            var cells = rows[path];
+            if (cells[1] == "optional")
+            {
+                Assert.True(cells[4].Length > 0 && cells[4] != "—", $"`{path}` is optional, but docs/recipes.md does not say what its absence means (the default): '{cells[4]}'.");
+            }
+
+            if (spec.Kind == ValueKind.Number)
+            {
+                Assert.True(cells[3].Length > 0, $"`{path}` is a number, but docs/recipes.md gives it no units.");
+            }
+        }
+    }
+
+    [Fact]
     public void The_figure_table_lists_every_figure_every_fit_produces()
     {
         var rows = CodeRows(Page("recipes.md"), "### Figures a limit can name").Select(r => r.Code).ToList();

@@ -85,6 +85,66 @@ public sealed class OneShotRunTests : IClassFixture<OneShotRunTests.DemoRun>
     }
 
     [Fact]
+    public void Every_row_and_pass_fail_line_judged_under_a_recipe_names_its_version_and_content_hash()
+    {
+        var catalog = StandFit.Edges.RecipeFiles.RecipeCatalog.Load(DemoSet.Recipes);
+        var rows = Duck.Query($"SELECT source_file, part, ruling, recipe_name, recipe_version, recipe_hash, unit_key FROM read_parquet({Duck.Literal(_run.SummaryGlob)})");
+        var lines = Directory.EnumerateFiles(Path.Combine(_run.Output, "passfail"), "*.log").SelectMany(File.ReadAllLines).ToList();
+        var judged = 0;
+        foreach (var row in rows)
+        {
+            var file = (string)row["source_file"]!;
+            var line = Assert.Single(lines, l => l.Contains(" file=" + file + " ", StringComparison.Ordinal));
+            if (row["recipe_hash"] is not null)
+            {
+                var recipe = catalog.ForPart((string)row["part"]!);
+                Assert.NotNull(recipe);
+                // A recipe that stands alone: its hash is the SHA-256 of its file's bytes.
+                Assert.Equal(recipe.Version, row["recipe_version"]);
+                Assert.Equal(recipe.ContentHash, row["recipe_hash"]);
+                Assert.Equal(Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(Path.Combine(DemoSet.Recipes, recipe.SourceFile)))), row["recipe_hash"]);
+                Assert.EndsWith(":" + recipe.ContentHash, (string)row["unit_key"]!, StringComparison.Ordinal);
+                Assert.Contains("@" + recipe.Version, line, StringComparison.Ordinal);
+                judged++;
+            }
+            else
+            {
+                // Rejected before a recipe was applied (unreadable, no part, no recipe for the part): none is claimed.
+                Assert.Equal("rejected", row["ruling"]);
+                Assert.Null(row["recipe_version"]);
+                Assert.EndsWith(":none", (string)row["unit_key"]!, StringComparison.Ordinal);
+            }
+        }
+
+        // Every pass, fail and retest row names its recipe.
+        Assert.Equal(DemoSet.Expected.Count(e => e.Ruling != "rejected"), rows.Count(r => (string)r["ruling"]! != "rejected" && r["recipe_hash"] is not null));
+        Assert.True(judged >= DemoSet.Expected.Count(e => e.Ruling != "rejected"));
+    }
+
+    [Fact]
+    public void A_retest_row_records_the_straddled_limit_with_its_conditional_state_and_no_other_limit_has_one()
+    {
+        var limits = Duck.Query(
+            "SELECT source_file, ruling, l.figure AS figure, l.\"rule\" AS rule_name, l.zone AS zone, l.conditional AS conditional, l.\"value\" AS v, l.\"min\" AS lo, l.\"max\" AS hi, l.expanded_uncertainty AS u "
+            + $"FROM (SELECT source_file, ruling, unnest(limit_results) AS l FROM read_parquet({Duck.Literal(_run.SummaryGlob)}))");
+        foreach (var expected in DemoSet.Expected.Where(e => e.Ruling == "retest"))
+        {
+            var straddled = Assert.Single(limits, l => (string)l["source_file"]! == expected.File && (string)l["zone"]! == "straddles");
+            Assert.Equal(expected.Reasons.Single(), (string)straddled["figure"]! + ".straddles_limit");
+            Assert.Equal("guarded", straddled["rule_name"]);
+            Assert.True((double)straddled["u"]! > 0);
+            var value = (double)straddled["v"]!;
+            var inside = (straddled["lo"] is not double lo || value >= lo) && (straddled["hi"] is not double hi || value <= hi);
+            Assert.Equal(inside ? "pass" : "fail", straddled["conditional"]);
+        }
+
+        // A unit may also straddle one limit and fail another (a fail outranks a retest): its straddle has its conditional state too.
+        Assert.All(limits.Where(l => (string)l["zone"]! != "straddles"), l => Assert.Null(l["conditional"]));
+        Assert.All(limits.Where(l => (string)l["zone"]! == "straddles"), l => Assert.Contains((string)l["conditional"]!, new[] { "pass", "fail" }));
+        Assert.Equal(DemoSet.Expected.Count(e => e.Ruling == "retest"), limits.Count(l => (string)l["zone"]! == "straddles" && (string)l["ruling"]! == "retest"));
+    }
+
+    [Fact]
     public void Timestamps_are_utc_millisecond_columns_that_filter_by_date()
     {
         // Test starts of the demo run from 2026-11-30T22:00Z to 2026-12-01T06:00Z (sample-runs/EXPECTED.md).

@@ -185,6 +185,21 @@ public sealed class RecipeCatalogTests : IDisposable
     }
 
     [Fact]
+    public void A_utf16_recipe_file_is_told_to_be_saved_as_utf8_with_or_without_its_byte_order_mark()
+    {
+        File.WriteAllBytes(Path.Combine(_folder, "a-bom.yaml"), [.. Encoding.Unicode.GetPreamble(), .. Encoding.Unicode.GetBytes(Recipe("wide", "KP-100"))]);
+        File.WriteAllBytes(Path.Combine(_folder, "b-no-bom.yaml"), Encoding.Unicode.GetBytes(Recipe("wide", "KP-101")));
+
+        var problems = RecipeCatalog.Load(_folder).Problems;
+
+        Assert.Equal(2, problems.Length);
+        Assert.Equal(new Problem("recipe.unreadable", "the recipe file is UTF-16 text; recipe files must be UTF-8. Save it as UTF-8 in your editor.", SourceLocation.WholeFile("a-bom.yaml")), problems[0]);
+
+        // The first NUL byte is the high half of 'r': line 1, after the one character before it.
+        Assert.Equal(new Problem("recipe.unreadable", "byte 1 is a NUL or control byte: the file is not UTF-8 text (UTF-16 without a byte-order mark, or not text at all). Save the recipe as UTF-8 text.", SourceLocation.At("b-no-bom.yaml", 1, 2)), problems[1]);
+    }
+
+    [Fact]
     public void A_recipe_file_with_a_utf8_byte_order_mark_loads()
     {
         File.WriteAllBytes(Path.Combine(_folder, "bom.yaml"), [0xEF, 0xBB, 0xBF, .. Encoding.UTF8.GetBytes(Recipe("bom", "KP-250"))]);

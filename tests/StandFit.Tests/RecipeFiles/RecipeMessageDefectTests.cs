@@ -6,9 +6,8 @@ using StandFit.Tests.Support;
 namespace StandFit.Tests.RecipeFiles;
 
 /// <summary>
-/// Known defects in the wording of recipe problems and in the generated schema, each written as the
-/// test that will pass once it is fixed. The broken-recipe corpus checks these messages only by a
-/// substring that avoids the defect, so that it does not enshrine it.
+/// Defects found in the wording of recipe problems and in the generated schema, each kept as the
+/// test of the fixed behaviour (the broken-recipe corpus checks the same messages in full).
 /// </summary>
 public sealed class RecipeMessageDefectTests
 {
@@ -41,7 +40,7 @@ public sealed class RecipeMessageDefectTests
         Assert.Contains("'decision: { rule: guarded }'", message, StringComparison.Ordinal);
     }
 
-    [Fact(Skip = "bug: RecipeBinder.ReadSweep reports sweep.range with min equal to max through Messages.MinAboveMax, which says 'has min 100 above max 100'")]
+    [Fact]
     public void A_range_with_min_equal_to_max_is_not_described_as_min_above_max()
     {
         var message = Message(Base + "sweep:\n  range: { min: 100, max: 100 }\n");
@@ -49,7 +48,7 @@ public sealed class RecipeMessageDefectTests
         Assert.DoesNotContain("above max", message, StringComparison.Ordinal);
     }
 
-    [Fact(Skip = "bug: Messages.RecipeYamlSyntax appends '. Check ...' to the parser's detail, which already ends with a period: 'found invalid mapping.. Check'")]
+    [Fact]
     public void A_yaml_syntax_message_has_no_doubled_period()
     {
         var message = Message(Base.Replace("  stimulus: pressure_kPa", "  stimulus: pressure_kPa: kPa", StringComparison.Ordinal));
@@ -57,7 +56,7 @@ public sealed class RecipeMessageDefectTests
         Assert.DoesNotContain("..", message, StringComparison.Ordinal);
     }
 
-    [Fact(Skip = "bug: YamlTree reports a tag by its expanded name ('tag:yaml.org,2002:float'), not as the author wrote it ('!!float')")]
+    [Fact]
     public void A_tag_is_named_as_it_was_written()
     {
         var message = Message(Base.Replace("confidence: 0.95", "confidence: !!float 0.95", StringComparison.Ordinal));
@@ -65,7 +64,7 @@ public sealed class RecipeMessageDefectTests
         Assert.Contains("'!!float'", message, StringComparison.Ordinal);
     }
 
-    [Fact(Skip = "bug: RecipeCatalog.Read reuses the sweep reader's encoding message, which tells the author of a recipe file to 'Set the stand's export encoding to UTF-8'")]
+    [Fact]
     public void A_recipe_file_that_is_not_utf8_is_told_to_be_saved_as_utf8_not_to_fix_the_stand()
     {
         using var folder = new TempFolder();
@@ -78,7 +77,7 @@ public sealed class RecipeMessageDefectTests
         Assert.DoesNotContain("stand", problem.Message, StringComparison.Ordinal);
     }
 
-    [Fact(Skip = "bug: RecipeSchema declares p_min with an inclusive Maximum of 0.5, so the JSON Schema accepts p_min: 0.5, which the binder refuses ('above 0 and below 0.5'); KeySpec has no exclusive maximum")]
+    [Fact]
     public void The_json_schema_refuses_a_runs_floor_of_one_half_as_the_binder_does()
     {
         var pMin = JsonNode.Parse(RecipeJsonSchema.Generate())!["properties"]!["gates"]!["properties"]!["runs_test"]!["properties"]!["p_min"]!;

@@ -11,6 +11,16 @@ public static class DemoSet
 
     public static IReadOnlyList<Expectation> Expected { get; } = Load();
 
+    /// <summary>
+    /// The demo files that name a part no recipe lists: <c>run</c> rejects them (input.no_recipe),
+    /// <c>watch</c> holds them until a recipe lists the part.
+    /// </summary>
+    public static IReadOnlyList<Expectation> HeldByWatch { get; } =
+        [.. Expected.Where(e => e.Reasons.Contains("input.no_recipe") && File.ReadLines(Path.Combine(Folder, e.File)).Any(l => l.StartsWith("# part:", StringComparison.Ordinal)))];
+
+    /// <summary>How many demo units <c>watch</c> publishes (all but the held ones).</summary>
+    public static int PublishedByWatch => Expected.Count - HeldByWatch.Count;
+
     /// <summary>A configuration file for a test: all folders under <paramref name="root"/>, the demo's recipes.</summary>
     public static string WriteConfig(TempFolder root, int flushUnits = 5000)
     {

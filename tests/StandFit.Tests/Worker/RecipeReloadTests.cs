@@ -59,6 +59,8 @@ public sealed class RecipeReloadTests
         Volatile.Write(ref counting, 1);
         await signals[3].Task.WaitAsync(Timeout); // ten more passes over the broken folder
         Assert.Equal(1, log.Count(3004));
+        Assert.Equal(2, log.Count(3002)); // the unknown key and the missing one, each logged once
+
 
         // Fixed, with a change: the new recipe comes into force.
         File.WriteAllText(recipeFile, good + "\n# reviewed\n");

@@ -2,7 +2,10 @@ using StandFit.Tests.Support;
 
 namespace StandFit.Tests.Worker;
 
-/// <summary>`standfit watch` as a separate process: it judges what lands and stops cleanly on SIGTERM.</summary>
+/// <summary>
+/// `standfit watch` as a separate process: it judges what lands and stops cleanly on SIGTERM. The
+/// demo's unit of a part without a recipe is held in the claim folder, not rejected (issue #4 item 7).
+/// </summary>
 public sealed partial class WatchProcessTests
 {
     private static readonly TimeSpan Timeout = TimeSpan.FromMinutes(2);
@@ -40,7 +43,7 @@ public sealed partial class WatchProcessTests
             }
 
             var match = BatchLine().Match(e.Data);
-            if (match.Success && Interlocked.Add(ref published, int.Parse(match.Groups[1].Value, System.Globalization.CultureInfo.InvariantCulture)) >= DemoSet.Expected.Count)
+            if (match.Success && Interlocked.Add(ref published, int.Parse(match.Groups[1].Value, System.Globalization.CultureInfo.InvariantCulture)) >= DemoSet.PublishedByWatch)
             {
                 allPublished.TrySetResult();
             }
@@ -72,8 +75,13 @@ public sealed partial class WatchProcessTests
         Assert.Equal(0, process.ExitCode);
         Assert.Contains("Worker stopping", stderr.ToString(), StringComparison.Ordinal);
         Assert.Empty(Directory.EnumerateFiles(Path.Combine(root.Path, "inbox")));
-        var lines = Directory.EnumerateFiles(Path.Combine(root.Path, "output", "passfail")).SelectMany(File.ReadAllLines).Count();
-        Assert.Equal(DemoSet.Expected.Count, lines);
+        var lines = Directory.EnumerateFiles(Path.Combine(root.Path, "output", "passfail")).SelectMany(File.ReadAllLines).ToList();
+        Assert.Equal(DemoSet.PublishedByWatch, lines.Count);
+        var held = Assert.Single(DemoSet.HeldByWatch);
+        Assert.DoesNotContain(lines, l => l.Contains(held.File, StringComparison.Ordinal));
+        Assert.Single(Directory.EnumerateFiles(Path.Combine(root.Path, "inbox", ".claimed"), "*~" + held.File, SearchOption.AllDirectories));
+        Assert.Single(stderr.ToString().Split('\n'), l => l.Contains(held.File + " names part", StringComparison.Ordinal));
+        Assert.False(Directory.Exists(Path.Combine(root.Path, "rejected")) && Directory.EnumerateFiles(Path.Combine(root.Path, "rejected"), held.File, SearchOption.AllDirectories).Any());
     }
 
     [System.Text.RegularExpressions.GeneratedRegex(@"Batch of (\d+) units published")]
@@ -142,7 +150,7 @@ public sealed partial class WatchProcessTests
         {
             try
             {
-                if (File.ReadAllText(status).Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"processed\": {DemoSet.Expected.Count},"), StringComparison.Ordinal))
+                if (File.ReadAllText(status).Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"processed\": {DemoSet.PublishedByWatch},"), StringComparison.Ordinal))
                 {
                     counted.TrySetResult();
                 }
@@ -179,6 +187,7 @@ public sealed partial class WatchProcessTests
         Assert.Contains("\"state\": \"stopped\"", text, StringComparison.Ordinal);
         Assert.Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"passed\": {DemoSet.Expected.Count(e => e.Ruling == "pass")},"), text, StringComparison.Ordinal);
         Assert.Contains("\"worker_id\": \"test-worker\"", text, StringComparison.Ordinal);
-        Assert.Contains("\"held\": 0", text, StringComparison.Ordinal);
+        Assert.Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"held\": {DemoSet.HeldByWatch.Count},"), text, StringComparison.Ordinal);
+        Assert.Contains(string.Create(System.Globalization.CultureInfo.InvariantCulture, $"\"awaiting_recipe\": {DemoSet.HeldByWatch.Count}"), text, StringComparison.Ordinal);
     }
 }
