@@ -22,7 +22,7 @@ public static class Help
         """;
 
     public const string Run = """
-        Usage: standfit run [--config FILE] [--from DIR] [--quiet]
+        Usage: standfit run [--config FILE] [--from DIR] [--shard I/N] [--quiet]
 
         Processes every ready sweep file in the inbox, writes the summary Parquet and the pass/fail
         log, moves each input to archive/ or rejected/, prints one line per unit and the totals, and exits.
@@ -30,6 +30,9 @@ public static class Help
           --config FILE   the configuration (default: config/standfit.yaml)
           --from DIR      read the files of DIR in place instead of the inbox: they are never moved
                           or changed; copies go to archive/ or rejected/
+          --shard I/N     take only shard I of N (0-based) of the files, chosen by a hash of the file
+                          name: N processes or machines with I = 0 .. N-1 share one job, each file
+                          judged by exactly one of them; each shard works as worker '<id>-shard-I-of-N'
           --quiet         print only the totals
         """;
 

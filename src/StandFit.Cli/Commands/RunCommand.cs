@@ -13,7 +13,7 @@ internal static class RunCommand
 {
     public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
     {
-        var (parsed, problem) = Arguments.Parse(args, ["--config", "--from"], ["--quiet", "--help"]);
+        var (parsed, problem) = Arguments.Parse(args, ["--config", "--from", "--shard"], ["--quiet", "--help"]);
         if (parsed is null || parsed.Positional.Count > 0)
         {
             error.WriteLine("standfit run: " + (problem ?? "unexpected argument " + parsed!.Positional[0]));
@@ -34,11 +34,21 @@ internal static class RunCommand
             return ExitCodes.Usage;
         }
 
+        var shard = Shard.All;
+        if (parsed.Value("--shard") is { } shardText && !Shard.TryParse(shardText, out shard))
+        {
+            error.WriteLine("standfit run: " + Core.Problems.Messages.BadShard(shardText, Shard.MaxCount));
+            return ExitCodes.Usage;
+        }
+
         var options = Startup.LoadOptions(parsed.Value("--config"), error, needInbox: from is null);
         if (options is null)
         {
             return ExitCodes.Configuration;
         }
+
+        // Each shard works as a worker of its own (claims, journal, Parquet file names, lock).
+        options = options with { WorkerId = shard.WorkerIdOf(options.WorkerId) };
 
         var quiet = parsed.Has("--quiet");
         using var log = OperationsLog.Create(options.Logs, LogEventLevel.Error);
@@ -65,7 +75,7 @@ internal static class RunCommand
         }
 
         var folder = Path.GetFullPath(from ?? options.Inbox);
-        var inputs = DropFolder.ListReady(folder);
+        var inputs = DropFolder.ListReady(folder).Where(shard.Owns).ToList();
         var modeName = from is null ? "inbox, inputs moved" : "read in place, inputs copied";
         Log.RunStarted(logger, inputs.Count, folder, modeName);
         using var stop = new CancellationTokenSource();

@@ -13,6 +13,8 @@ public static class Messages
     private static string Separator(char c) => c == '\t' ? "tab" : c.ToString();
 
     // ---- sweep files -------------------------------------------------------------------------
+    public static string BadShard(string text, int maxCount) => F($"--shard '{text}' is not a shard: write I/N with N from 1 to {maxCount} and I from 0 to N-1 (0-based, as a Kubernetes Indexed Job's JOB_COMPLETION_INDEX), for example --shard 0/4.");
+
     public static string EmptyFile() => "the file is empty; the stand wrote no data. Re-run the sweep or check the stand's export.";
     public static string BinaryFile(int offset) => F($"byte {offset} is not text (NUL or a control byte); the file is not a sweep export. Check that the stand writes plain text.");
     public static string Utf16File() => "the file is UTF-16 text; sweep files must be UTF-8. Set the stand's export encoding to UTF-8.";

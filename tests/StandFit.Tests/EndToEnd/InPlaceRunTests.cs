@@ -33,6 +33,39 @@ public sealed class InPlaceRunTests
         Assert.Equal((long)DemoSet.Expected.Count, Convert.ToInt64(count[0]["n"], System.Globalization.CultureInfo.InvariantCulture));
     }
 
+    [Fact]
+    public async Task Three_shards_into_one_output_folder_judge_every_demo_unit_exactly_once_as_one_run_would()
+    {
+        using var root = new TempFolder();
+        var config = DemoSet.WriteConfig(root);
+        var printed = new List<string>();
+        for (var i = 0; i < 3; i++)
+        {
+            var outcome = await StandFitProcess.RunAsync(root.Path, Timeout, "run", "--config", config, "--from", DemoSet.Folder, "--shard", $"{i}/3");
+            Assert.True(outcome.ExitCode == 0, outcome.Error);
+            printed.Add(outcome.Output);
+        }
+
+        var glob = Duck.Literal(Path.Combine(root.Path, "output", "summaries", "**", "*.parquet"));
+        var rows = Duck.Query($"SELECT source_file, ruling FROM read_parquet({glob})");
+        Assert.Equal(DemoSet.Expected.Count, rows.Count);
+        Assert.Equal(
+            DemoSet.Expected.Select(e => (e.File, e.Ruling)).Order(),
+            rows.Select(r => ((string)r["source_file"]!, (string)r["ruling"]!)).Order());
+
+        // Every shard had work: the demo's 50 names do not all hash into one or two shards.
+        Assert.All(printed, o => Assert.Contains(".csv", o, StringComparison.Ordinal));
+    }
+
+    [Fact]
+    public async Task A_shard_that_is_not_index_slash_count_is_a_usage_error()
+    {
+        using var root = new TempFolder();
+        var outcome = await StandFitProcess.RunAsync(root.Path, Timeout, "run", "--config", DemoSet.WriteConfig(root), "--from", DemoSet.Folder, "--shard", "3/3");
+        Assert.Equal(2, outcome.ExitCode);
+        Assert.Contains("--shard '3/3' is not a shard", outcome.Error, StringComparison.Ordinal);
+    }
+
     private static string Fingerprint(string folder) =>
         string.Join('\n', Directory.EnumerateFiles(folder).Order(StringComparer.Ordinal).Select(f => Path.GetFileName(f) + " " + Convert.ToHexString(SHA256.HashData(File.ReadAllBytes(f)))));
 }
