@@ -57,13 +57,14 @@ public static partial class RecipeBinder
             return null;
         }
 
-        if (parameters is null)
+        if (model.Node("parameters") is not YamlMap declaredMap)
         {
             return null;
         }
 
-        var ok = true;
-        var declared = parameters.Select(p => p.Parameter.Name).ToList();
+        // The names are compared even when a parameter's values have a problem: every problem at once.
+        var ok = parameters is not null;
+        var declared = declaredMap.Entries.Select(e => e.Key.Text).ToList();
         foreach (var used in open.Expression.ParameterNames)
         {
             if (declared.Contains(used))
@@ -79,16 +80,16 @@ public static partial class RecipeBinder
             ok = false;
         }
 
-        foreach (var (parameter, key) in parameters)
+        foreach (var entry in declaredMap.Entries)
         {
-            if (!open.Expression.ParameterNames.Contains(parameter.Name))
+            if (!open.Expression.ParameterNames.Contains(entry.Key.Text) && !LooksLikeInput(entry.Key.Text))
             {
-                model.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeParameterUnused(ParameterSpecPath(model, parameter.Name), text), key);
+                model.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeParameterUnused(ParameterSpecPath(model, entry.Key.Text), text), entry.Key);
                 ok = false;
             }
         }
 
-        if (!ok)
+        if (!ok || parameters is null)
         {
             return null;
         }
@@ -224,7 +225,7 @@ public static partial class RecipeBinder
             var key = section.Entries.First(e => e.Key.Text == d.Name).Key;
             if (inputCount > 1)
             {
-                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeDerivedOneInput("derived." + d.Name, inputCount), key);
+                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeDerivedOneInput("'derived." + d.Name + "'", inputCount), key);
                 continue;
             }
 
@@ -235,11 +236,11 @@ public static partial class RecipeBinder
 
             if (weights.Entries.Any(e => e.Key.Text == "column"))
             {
-                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeCurveUseNeedsRule("derived." + d.Name), key);
+                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeCurveUseNeedsRule("'derived." + d.Name + "'"), key);
             }
             else if (model is LinearModel { ResponseDescription: not null } transformed)
             {
-                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeCurveUseTransformed("derived." + d.Name, transformed.Name), key);
+                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeCurveUseTransformed("'derived." + d.Name + "'", transformed.Name), key);
             }
         }
     }
