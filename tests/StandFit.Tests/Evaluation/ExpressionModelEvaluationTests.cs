@@ -147,7 +147,7 @@ public sealed class ExpressionModelEvaluationTests
         Assert.Equal("%RH", row.Parameters.Single(p => p.Name == "tau").Unit);
     }
 
-    private const string RiseColumns = "columns:\n  stimulus: x_pct\n  output: out_V\n";
+    private const string RiseColumns = "columns:\n  stimulus: x_pct\n  output: out_V\nunits:\n  stimulus: \"%RH\"\n  output: V\n";
 
     private static Recipe RecipeOf(string body)
     {

@@ -1,7 +1,8 @@
 # Reference values for expression models fitted by Levenberg-Marquardt and for the uses of their
 # curves (StandFit.Core.Curve on a NonlinearFitResult), computed by R's nls() (Gauss-Newton, its
 # own code) and, for the bands, sensitivities and inverse predictions, by the delta method with
-# gradients from R's symbolic deriv() and D(), which share no code with StandFit. Run from the
+# gradients from R's symbolic deriv() and D(), which share no code with StandFit. nls gives the
+# start of six Gauss-Newton steps (qr.solve) that polish its estimates to working precision. Run from the
 # repository root (R 4.2.2 from Debian's r-base-core; base R only):
 #
 #     Rscript tests/StandFit.Tests/Fixtures/Curve/nonlinear_curve_reference.R
@@ -31,18 +32,8 @@ put <- function(case, quantity, values) {
 reference <- function(case, model, data, start, points, y0s) {
   fit <- nls(as.formula(paste("y ~", deparse(model))), data = data, start = start,
              control = nls.control(maxiter = 1000, tol = 5e-8, minFactor = 1e-12))
-  s <- summary(fit)
   names <- names(start)
   b <- as.list(coef(fit))
-  V <- vcov(fit)
-  s2 <- s$sigma^2
-  df <- df.residual(fit)
-  tc <- qt(1 - (1 - level) / 2, df)
-  put(case, "coef", coef(fit))
-  put(case, "se", s$coefficients[, 2])
-  put(case, "sigma", s$sigma)
-  put(case, "df", df)
-  put(case, "cor", as.vector(t(cov2cor(V))))
   value <- deriv(model, names, function.arg = c("x", names))
   slope_expr <- D(model, "x")
   slope <- deriv(slope_expr, names, function.arg = c("x", names))
@@ -50,6 +41,26 @@ reference <- function(case, model, data, start, points, y0s) {
     r <- do.call(f, c(list(x = x), b))
     list(v = as.vector(r), g = attr(r, "gradient"))
   }
+  # nls stops on its relative-offset criterion; a few Gauss-Newton steps (QR of the gradient)
+  # take the estimates to the least-squares point to working precision, and the covariance is
+  # s^2 (J'J)^-1 from the QR of J there (as vcov.nls computes it).
+  for (k in 1:6) {
+    p <- at(value, data$x)
+    b <- as.list(setNames(unlist(b) + qr.solve(p$g, data$y - p$v), names))
+  }
+  p <- at(value, data$x)
+  df <- length(data$y) - length(names)
+  s2 <- sum((data$y - p$v)^2) / df
+  q <- qr(p$g)
+  unpivot <- order(q$pivot)
+  V <- s2 * chol2inv(qr.R(q))[unpivot, unpivot]
+  tc <- qt(1 - (1 - level) / 2, df)
+  put(case, "coef", unlist(b))
+  put(case, "se", sqrt(diag(V)))
+  put(case, "sigma", sqrt(s2))
+  put(case, "df", df)
+  put(case, "cor", as.vector(t(cov2cor(V))))
+  put(case, "nls_coef", coef(fit))
   se_of <- function(g) sqrt(rowSums((g %*% V) * g))
   v <- at(value, points)
   se <- se_of(v$g)
