@@ -59,17 +59,27 @@ public static class LevenbergMarquardt
             return new Problem(ReasonCodes.FitTooFewPoints.Code, Messages.TooFewPoints(n, p), SourceLocation.WholeFile(sourceName));
         }
 
-        var flat = new double[n * v];
-        for (var k = 0; k < v; k++)
+        // The solver only reads the data: one variable's column and the response are used in place
+        // (no copies); several variables are interleaved row by row.
+        double[] flat;
+        if (v == 1)
         {
-            var column = variables[k];
-            for (var i = 0; i < n; i++)
+            flat = ImmutableCollectionsMarshal.AsArray(variables[0])!;
+        }
+        else
+        {
+            flat = new double[n * v];
+            for (var k = 0; k < v; k++)
             {
-                flat[(i * v) + k] = column[i];
+                var column = variables[k];
+                for (var i = 0; i < n; i++)
+                {
+                    flat[(i * v) + k] = column[i];
+                }
             }
         }
 
-        var response = y.ToArray();
+        var response = ImmutableCollectionsMarshal.AsArray(y)!;
         var solver = new LevenbergMarquardtSolver(model, flat, response, options, lower, upper);
         var x = start.ToArray();
         var status = solver.Run(x);
@@ -106,7 +116,8 @@ public static class LevenbergMarquardt
         var leverage = new double[n];
         Array.Fill(leverage, double.NaN);
         var condition = double.PositiveInfinity;
-        var jacobian = new double[n * p];
+        // The search is over: its Jacobian buffer and QR workspace serve the covariance.
+        var jacobian = solver.JacobianBuffer;
         var design = new double[n * p];
         var finite = status != NonlinearFitStatus.NonFinite && solver.JacobianInto(x, jacobian) && double.IsFinite(rss);
         for (var i = 0; finite && i < n; i++)
@@ -118,7 +129,7 @@ public static class LevenbergMarquardt
         }
 
         var hasIntercept = false;
-        var fullRank = finite && Covariance(jacobian, n, p, rss / (n - p), covariance, leverage, out condition, out hasIntercept);
+        var fullRank = finite && Covariance(solver.Qr, jacobian, n, p, rss / (n - p), covariance, leverage, out condition, out hasIntercept);
         if (status.IsConverged() && !finite)
         {
             status = NonlinearFitStatus.NonFinite;
@@ -171,7 +182,7 @@ public static class LevenbergMarquardt
     /// with unit-norm columns, J C^-1 P = Q R: (J'J)^-1 = C^-1 P R^-1 R^-T P' C^-1. False when J is
     /// singular (a zero column or a pivot at or below <see cref="RankTolerance"/> of the largest).
     /// </summary>
-    private static bool Covariance(double[] jacobian, int n, int p, double s2, double[] covariance, double[] leverage, out double condition, out bool hasIntercept)
+    private static bool Covariance(ReusableQr qr, double[] jacobian, int n, int p, double s2, double[] covariance, double[] leverage, out double condition, out bool hasIntercept)
     {
         condition = double.PositiveInfinity;
         hasIntercept = false;
@@ -191,7 +202,6 @@ public static class LevenbergMarquardt
             }
         }
 
-        var qr = new ReusableQr(n, p);
         qr.Factor(jacobian);
         var r = new double[p * p];
         qr.CopyR(r);
