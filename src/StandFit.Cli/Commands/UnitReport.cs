@@ -21,10 +21,15 @@ internal static class UnitReport
             Line($"recipe      {recipe.Name}  version {recipe.Version}  ({recipe.SourceFile}, sha256 {recipe.ContentHash[..16]}...)");
         }
 
+        if (unit.Search is { } search)
+        {
+            Line($"search      Levenberg-Marquardt {search.StatusCode}, {search.Iterations} iterations: {search.StatusReason}");
+        }
+
         if (unit.Fit is { } fit)
         {
             var level = unit.Recipe!.Confidence;
-            Line($"model       {fit.Model.Name}  {fit.Count} points, {fit.DegreesOfFreedom} df, condition number {Numbers.Format(fit.ConditionNumber, 4)}");
+            Line($"model       {fit.ModelName}  {fit.Count} points, {fit.DegreesOfFreedom} df, condition number {Numbers.Format(fit.ConditionNumber, 4)}");
             Line($"");
             Line($"{"parameter",-10} {"estimate",14} {"SE",12} {"CI low (" + level + ")",18} {"CI high",14} {"t",10} {"p",10}  unit");
             foreach (var p in unit.Parameters)

@@ -20,7 +20,7 @@ public sealed record BandPoint(
     double PredictionHigh);
 
 /// <summary>
-/// Uses of a fitted curve at chosen stimulus points, each a pure function of a <see cref="FitResult"/>:
+/// Uses of a fitted curve at chosen stimulus points, each a pure function of an <see cref="IFitResult"/> (a linear fit, or a nonlinear one linearised at its estimates: the delta method):
 /// <list type="bullet">
 /// <item>sensitivity dy/dx_k = sum_j b_j d f_j / d x_k, with se = sqrt(g' C g), g = (d f_j / d x_k)_j the
 /// gradient of the slope with respect to the parameters and C their covariance;</item>
@@ -33,31 +33,29 @@ public sealed record BandPoint(
 public static class CurveUse
 {
     /// <summary>The slope of the curve with respect to input <paramref name="input"/> at the point <paramref name="x"/>.</summary>
-    public static Sensitivity SensitivityAt(FitResult fit, ReadOnlySpan<double> x, ConfidenceLevel level, int input = 0)
+    public static Sensitivity SensitivityAt(IFitResult fit, ReadOnlySpan<double> x, ConfidenceLevel level, int input = 0)
     {
         CheckPoint(fit, x);
         Span<double> gradient = stackalloc double[fit.ParameterCount];
-        fit.Model.FillBasisDerivative(x, input, gradient);
-        var value = Dot(gradient, fit.Estimates.AsSpan());
+        var value = fit.SlopeAt(x, input, gradient);
         var se = Math.Sqrt(QuadraticForm(fit, gradient));
         var t = StudentT.TwoSidedCritical(level, fit.DegreesOfFreedom);
         return new Sensitivity(value, se, value - (t * se), value + (t * se));
     }
 
     /// <summary>The slope of a curve of one input at stimulus <paramref name="x"/>.</summary>
-    public static Sensitivity SensitivityAt(FitResult fit, double x, ConfidenceLevel level) => SensitivityAt(fit, [x], level);
+    public static Sensitivity SensitivityAt(IFitResult fit, double x, ConfidenceLevel level) => SensitivityAt(fit, [x], level);
 
     /// <summary>
     /// The fitted value and both bands at the point <paramref name="x"/>. A weighted fit needs the
     /// new reading's standard uncertainty <paramref name="newReadingUncertainty"/> (in the units the
     /// fit's uncertainties were given in); an unweighted fit takes none.
     /// </summary>
-    public static BandPoint BandAt(FitResult fit, ReadOnlySpan<double> x, ConfidenceLevel level, double? newReadingUncertainty = null, int observations = 1)
+    public static BandPoint BandAt(IFitResult fit, ReadOnlySpan<double> x, ConfidenceLevel level, double? newReadingUncertainty = null, int observations = 1)
     {
         CheckPoint(fit, x);
         Span<double> basis = stackalloc double[fit.ParameterCount];
-        fit.Model.FillBasis(x, basis);
-        var fitted = Dot(basis, fit.Estimates.AsSpan());
+        var fitted = fit.ValueAt(x, basis);
         var meanVariance = QuadraticForm(fit, basis);
         var meanSe = Math.Sqrt(meanVariance);
         var predictionSe = Math.Sqrt(NewReadingVariance(fit, newReadingUncertainty, observations) + meanVariance);
@@ -66,11 +64,11 @@ public static class CurveUse
     }
 
     /// <summary>The bands of a curve of one input at stimulus <paramref name="x"/>.</summary>
-    public static BandPoint BandAt(FitResult fit, double x, ConfidenceLevel level, double? newReadingUncertainty = null, int observations = 1) =>
+    public static BandPoint BandAt(IFitResult fit, double x, ConfidenceLevel level, double? newReadingUncertainty = null, int observations = 1) =>
         BandAt(fit, [x], level, newReadingUncertainty, observations);
 
     /// <summary>s^2 u0^2 / m: the variance of the mean of m new readings about the true curve.</summary>
-    internal static double NewReadingVariance(FitResult fit, double? newReadingUncertainty, int observations)
+    internal static double NewReadingVariance(IFitResult fit, double? newReadingUncertainty, int observations)
     {
         ArgumentOutOfRangeException.ThrowIfLessThan(observations, 1);
         double scale;
@@ -97,7 +95,7 @@ public static class CurveUse
     }
 
     /// <summary>g' C g with C the fit's covariance.</summary>
-    internal static double QuadraticForm(FitResult fit, ReadOnlySpan<double> g)
+    internal static double QuadraticForm(IFitResult fit, ReadOnlySpan<double> g)
     {
         var p = fit.ParameterCount;
         var sum = 0.0;
@@ -126,7 +124,7 @@ public static class CurveUse
         return sum;
     }
 
-    private static void CheckPoint(FitResult fit, ReadOnlySpan<double> x)
+    private static void CheckPoint(IFitResult fit, ReadOnlySpan<double> x)
     {
         if (x.Length != fit.InputCount)
         {

@@ -55,7 +55,7 @@ public static class InversePrediction
     /// uncertainty for a weighted fit (none for an unweighted one).
     /// </summary>
     public static InverseEstimate Solve(
-        FitResult fit,
+        IFitResult fit,
         double response,
         ConfidenceLevel level,
         int observations = 1,
@@ -105,7 +105,8 @@ public static class InversePrediction
 
         var x0 = Bisect(Gap, roots[0].A, roots[0].B);
         point[input] = x0;
-        var slope = fit.Model.Derivative(fit.Estimates.AsSpan(), point, input);
+        Span<double> unused = stackalloc double[fit.ParameterCount];
+        var slope = fit.SlopeAt(point, input, unused);
         var meanVariance = MeanVariance(fit, point);
         var se = Math.Sqrt(newVariance + meanVariance) / Math.Abs(slope);
 
@@ -122,16 +123,17 @@ public static class InversePrediction
         return new InverseEstimate(InverseStatus.Solved, response, x0, slope, se, x0 - (t * se), x0 + (t * se), low, high);
     }
 
-    private static double Value(FitResult fit, double[] point, int input, double x)
+    private static double Value(IFitResult fit, double[] point, int input, double x)
     {
         point[input] = x;
-        return fit.Model.Evaluate(fit.Estimates.AsSpan(), point);
+        Span<double> gradient = stackalloc double[fit.ParameterCount];
+        return fit.ValueAt(point, gradient);
     }
 
-    private static double MeanVariance(FitResult fit, double[] point)
+    private static double MeanVariance(IFitResult fit, double[] point)
     {
         Span<double> basis = stackalloc double[fit.ParameterCount];
-        fit.Model.FillBasis(point, basis);
+        fit.ValueAt(point, basis);
         return CurveUse.QuadraticForm(fit, basis);
     }
 

@@ -17,9 +17,9 @@ public sealed record BreuschPaganResult(double Statistic, int Df, double P, stri
 
 public static class BreuschPagan
 {
-    public static BreuschPaganResult Compute(FitResult fit) => Compute(fit, DesignBasis.Of(fit));
+    public static BreuschPaganResult Compute(IFitResult fit) => Compute(fit, DesignBasis.Of(fit));
 
-    internal static BreuschPaganResult Compute(FitResult fit, DesignBasis design)
+    internal static BreuschPaganResult Compute(IFitResult fit, DesignBasis design)
     {
         var n = fit.Count;
         var basis = design.HasConstant ? design : WithConstant(fit);
@@ -48,7 +48,7 @@ public static class BreuschPagan
     }
 
     /// <summary>The constant and the model's basis, for a model without a constant term.</summary>
-    private static DesignBasis WithConstant(FitResult fit)
+    private static DesignBasis WithConstant(IFitResult fit)
     {
         var n = fit.Count;
         var p = fit.ParameterCount;

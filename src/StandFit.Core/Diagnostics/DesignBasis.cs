@@ -31,7 +31,7 @@ internal sealed class DesignBasis
     public double this[int row, int column] => _q[(column * Rows) + row];
 
     /// <summary>The basis of the fit's design: the model's basis functions at the fit's scaled inputs (whitened rows for a weighted fit).</summary>
-    public static DesignBasis Of(FitResult fit)
+    public static DesignBasis Of(IFitResult fit)
     {
         var n = fit.Count;
         var p = fit.ParameterCount;
@@ -46,7 +46,7 @@ internal sealed class DesignBasis
             }
         }
 
-        return FromColumns(columns, n, p, fit.Model.HasIntercept);
+        return FromColumns(columns, n, p, fit.HasIntercept);
     }
 
     /// <summary>An orthonormal basis of the span of the columns (column-major n x p, full column rank).</summary>

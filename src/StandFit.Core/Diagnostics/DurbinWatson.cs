@@ -40,10 +40,10 @@ public static class DurbinWatson
     private static readonly ConcurrentDictionary<int, double[]> SineTables = new();
 
     /// <summary>The test on the fit's residuals in acquisition order (index order).</summary>
-    public static DurbinWatsonResult Compute(FitResult fit) => Compute(fit, null);
+    public static DurbinWatsonResult Compute(IFitResult fit) => Compute(fit, null);
 
     /// <summary>The test on the fit's residuals taken in <paramref name="order"/> (indices; null: index order).</summary>
-    public static DurbinWatsonResult Compute(FitResult fit, int[]? order) =>
+    public static DurbinWatsonResult Compute(IFitResult fit, int[]? order) =>
         Compute(fit.WeightedResiduals.AsSpan(), DesignBasis.Of(fit), order);
 
     internal static DurbinWatsonResult Compute(ReadOnlySpan<double> residuals, DesignBasis design, int[]? order)

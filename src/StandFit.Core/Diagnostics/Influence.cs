@@ -47,7 +47,7 @@ public static class Influence
     /// <summary>Leverage below 1 by less than this is taken as 1.</summary>
     private const double LeverageOne = 1e-10;
 
-    public static PointDiagnostics Points(FitResult fit)
+    public static PointDiagnostics Points(IFitResult fit)
     {
         var n = fit.Count;
         var p = fit.ParameterCount;
@@ -77,7 +77,7 @@ public static class Influence
         return new PointDiagnostics(fit.Leverage, [.. standardized], [.. studentized], [.. cooks]);
     }
 
-    public static OutlierTestResult OutlierTest(FitResult fit, PointDiagnostics points)
+    public static OutlierTestResult OutlierTest(IFitResult fit, PointDiagnostics points)
     {
         var df = fit.DegreesOfFreedom - 1;
         if (df < 1)

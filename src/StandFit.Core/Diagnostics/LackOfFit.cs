@@ -17,7 +17,7 @@ public sealed record LackOfFitResult(double F, int LackDf, int PureErrorDf, doub
 
 public static class LackOfFit
 {
-    public static LackOfFitResult Compute(FitResult fit, SetPointGrouping groups)
+    public static LackOfFitResult Compute(IFitResult fit, SetPointGrouping groups)
     {
         var n = fit.Count;
         var p = fit.ParameterCount;

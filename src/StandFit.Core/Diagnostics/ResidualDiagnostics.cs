@@ -40,7 +40,7 @@ public sealed record ResidualDiagnostics(
     FiguresOfMerit? Merit)
 {
     /// <summary>All diagnostics of <paramref name="fit"/>; <paramref name="legs"/> are the sweep's (one per point).</summary>
-    public static ResidualDiagnostics Compute(FitResult fit, ReadOnlySpan<Leg> legs, DiagnosticsOptions options)
+    public static ResidualDiagnostics Compute(IFitResult fit, ReadOnlySpan<Leg> legs, DiagnosticsOptions options)
     {
         var residuals = fit.WeightedResiduals.AsSpan();
         var design = DesignBasis.Of(fit);
@@ -53,7 +53,7 @@ public sealed record ResidualDiagnostics(
             Diagnostics.Autocorrelation.Lag1(residuals),
             groups,
             Diagnostics.LackOfFit.Compute(fit, groups),
-            Diagnostics.Curvature.Compute(fit, design),
+            fit is FitResult linear ? Diagnostics.Curvature.Compute(linear, design) : CurvatureResult.NotApplicable,
             Diagnostics.BreuschPagan.Compute(fit, design),
             Diagnostics.ShapiroWilk.Compute(residuals),
             Diagnostics.AndersonDarling.Compute(residuals),

@@ -36,8 +36,17 @@ public static class FigureTable
 
     public const string HalfWidthSuffix = ".half_width";
 
+    /// <summary>The half-width of a band figure's prediction band (<c>derived.&lt;name&gt;.band_at</c>).</summary>
+    public const string PredictionHalfWidthSuffix = ".prediction_half_width";
+
+    /// <summary>
+    /// Figures that need a linear design and are refused at recipe load for an expression model
+    /// (the curvature test adds the next power of a polynomial).
+    /// </summary>
+    public static readonly ImmutableArray<string> LinearOnlyFigures = ["curvature_f", "curvature_p"];
+
     /// <summary>Every figure name a recipe with this model and these derived figures can limit, and whether it has an uncertainty.</summary>
-    public static ImmutableDictionary<string, bool> Names(LinearModel model, IEnumerable<DerivedFigure> derived)
+    public static ImmutableDictionary<string, bool> Names(CurveModel model, IEnumerable<DerivedFigure> derived)
     {
         var names = ImmutableDictionary.CreateBuilder<string, bool>(StringComparer.Ordinal);
         foreach (var p in model.ParameterNames.Concat(model.DerivedNames))
@@ -49,6 +58,11 @@ public static class FigureTable
         foreach (var d in derived)
         {
             names[d.Name] = true;
+            names[d.Name + HalfWidthSuffix] = false;
+            if (d.Kind == DerivedKind.BandAt)
+            {
+                names[d.Name + PredictionHalfWidthSuffix] = false;
+            }
         }
 
         foreach (var f in FitFigures.Concat(DiagnosticFigures).Concat(NominalFigures))
@@ -59,7 +73,10 @@ public static class FigureTable
         return names.ToImmutable();
     }
 
-    public static ImmutableDictionary<string, FigureValue> Compute(FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, RunsTestResult runs, Recipe recipe, ResidualDiagnostics? diagnostics = null)
+    public static ImmutableDictionary<string, FigureValue> Compute(IFitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, RunsTestResult runs, Recipe recipe, ResidualDiagnostics? diagnostics = null) =>
+        Compute(fit, parameters, modelDerived, Curve.CurveFigures.Compute(fit, recipe), runs, recipe, diagnostics);
+
+    public static ImmutableDictionary<string, FigureValue> Compute(IFitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> modelDerived, ImmutableArray<Curve.CurveFigure> curve, RunsTestResult runs, Recipe recipe, ResidualDiagnostics? diagnostics = null)
     {
         var figures = ImmutableDictionary.CreateBuilder<string, FigureValue>(StringComparer.Ordinal);
         foreach (var p in parameters.Concat(modelDerived))
@@ -69,27 +86,33 @@ public static class FigureTable
             figures[p.Name + HalfWidthSuffix] = new FigureValue(p.Name + HalfWidthSuffix, (p.High - p.Low) / 2, null, null, unit);
         }
 
-        var gradient = new double[fit.ParameterCount];
-        foreach (var d in recipe.Derived)
+        // A derived figure that could not be computed for this unit (an inverse prediction outside
+        // the calibrated range, a value outside the model's domain) is absent: a limit on it is not evaluated.
+        foreach (var d in curve.Where(c => c.IsOk))
         {
-            if (d.Kind == DerivedKind.SensitivityAt)
+            var unit = d.Kind switch
             {
-                fit.Model.FillBasisDerivative([d.At], 0, gradient);
-            }
-            else
+                DerivedKind.SensitivityAt => recipe.UnitOfSensitivity(),
+                DerivedKind.InverseAt => recipe.Units.Stimulus,
+                _ => recipe.Units.Output,
+            };
+            figures[d.Name] = new FigureValue(d.Name, d.Value, d.StandardError, fit.DegreesOfFreedom, unit);
+            figures[d.Name + HalfWidthSuffix] = new FigureValue(d.Name + HalfWidthSuffix, d.HalfWidth, null, null, unit);
+            if (d.PredictionHalfWidth is { } prediction)
             {
-                fit.Model.FillBasis([d.At], gradient);
+                figures[d.Name + PredictionHalfWidthSuffix] = new FigureValue(d.Name + PredictionHalfWidthSuffix, prediction, null, null, unit);
             }
-
-            var (value, se) = Linear(fit, gradient);
-            var unit = d.Kind != DerivedKind.SensitivityAt ? recipe.Units.Output : recipe.UnitOfSensitivity();
-            figures[d.Name] = new FigureValue(d.Name, value, se, fit.DegreesOfFreedom, unit);
         }
 
-        figures["residual_sd"] = new FigureValue("residual_sd", fit.ResidualSd, null, null, recipe.Units.Output);
-        figures["r_squared"] = new FigureValue("r_squared", fit.RSquared, null, null, "");
-        figures["adj_r_squared"] = new FigureValue("adj_r_squared", fit.AdjustedRSquared, null, null, "");
-        figures["condition_number"] = new FigureValue("condition_number", fit.ConditionNumber, null, null, "");
+        // A fit figure that is not a number (R^2 of an output without scatter about its mean) is absent.
+        foreach (var (name, value, unit) in new[] { ("residual_sd", fit.ResidualSd, recipe.Units.Output), ("r_squared", fit.RSquared, ""), ("adj_r_squared", fit.AdjustedRSquared, ""), ("condition_number", fit.ConditionNumber, "") })
+        {
+            if (!double.IsNaN(value))
+            {
+                figures[name] = new FigureValue(name, value, null, null, unit);
+            }
+        }
+
         if (runs.IsApplicable)
         {
             figures["runs_p"] = new FigureValue("runs_p", runs.P, null, null, "");
@@ -179,22 +202,5 @@ public static class FigureTable
             Add("max_error_pct", m.MaxErrorPct, "%");
             Add("llf", m.LowerLimitFactor, outputUnit);
         }
-    }
-
-    /// <summary>g'b and sqrt(g' C g): a linear combination of the parameters and its standard error.</summary>
-    private static (double Value, double Se) Linear(FitResult fit, double[] g)
-    {
-        var p = fit.ParameterCount;
-        double value = 0, variance = 0;
-        for (var i = 0; i < p; i++)
-        {
-            value += g[i] * fit.Estimates[i];
-            for (var j = 0; j < p; j++)
-            {
-                variance += g[i] * fit.Covariance[(i * p) + j] * g[j];
-            }
-        }
-
-        return (value, Math.Sqrt(Math.Max(variance, 0)));
     }
 }

@@ -16,7 +16,7 @@ namespace StandFit.Core.Evaluation;
 /// </summary>
 public sealed class UnitEvaluation
 {
-    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, FitResult? fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult? runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Problem? problem)
+    private UnitEvaluation(string sourceName, UnitIdentity? identity, Recipe? recipe, Sweep? sweep, IFitResult? fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult? runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Problem? problem)
     {
         Derived = derived;
         Figures = figures;
@@ -39,7 +39,18 @@ public sealed class UnitEvaluation
 
     public Sweep? Sweep { get; }
 
-    public FitResult? Fit { get; }
+    /// <summary>The fit: a <see cref="FitResult"/> or a converged <see cref="Fitting.Nonlinear.NonlinearFitResult"/>; null when the unit was not fitted or the fit was rejected.</summary>
+    public IFitResult? Fit { get; }
+
+    /// <summary>
+    /// The Levenberg-Marquardt search of an expression model, kept also when it did not converge
+    /// (the unit is then rejected and <see cref="Fit"/> is null): its status, iterations and stop
+    /// reason go to the summary. Null for linear models.
+    /// </summary>
+    public Fitting.Nonlinear.NonlinearFitResult? Search { get; private init; }
+
+    /// <summary>The recipe's derived figures of the curve (sensitivity, value, bands, inverse prediction), in recipe order; empty when there is no fit.</summary>
+    public ImmutableArray<Curve.CurveFigure> Curve { get; private init; } = [];
 
     /// <summary>The parameters with their t-based intervals at the recipe's confidence (empty when rejected before the fit).</summary>
     public ImmutableArray<ParameterEstimate> Parameters { get; }
@@ -67,8 +78,18 @@ public sealed class UnitEvaluation
 
     public ParameterEstimate? Parameter(string name) => Parameters.FirstOrDefault(p => p.Name == name);
 
-    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, FitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Uncertainty.Resampling.ResamplingResult? resampling = null, ResidualDiagnostics? diagnostics = null) =>
-        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null) { Resampling = resampling, Diagnostics = diagnostics };
+    internal static UnitEvaluation Judged(string sourceName, Recipe recipe, Sweep sweep, IFitResult fit, ImmutableArray<ParameterEstimate> parameters, ImmutableArray<ParameterEstimate> derived, RunsTestResult runs, ImmutableDictionary<string, FigureValue> figures, Verdict verdict, Uncertainty.Resampling.ResamplingResult? resampling = null, ResidualDiagnostics? diagnostics = null, ImmutableArray<Curve.CurveFigure> curve = default) =>
+        new(sourceName, sweep.Identity, recipe, sweep, fit, parameters, derived, runs, figures, verdict, null)
+        {
+            Resampling = resampling,
+            Diagnostics = diagnostics,
+            Search = fit as Fitting.Nonlinear.NonlinearFitResult,
+            Curve = curve.IsDefault ? [] : curve,
+        };
+
+    /// <summary>A unit whose nonlinear fit did not give a solution: rejected, with the search kept for the summary.</summary>
+    internal static UnitEvaluation RejectedSearch(string sourceName, Problem problem, Recipe recipe, Sweep sweep, Fitting.Nonlinear.NonlinearFitResult search) =>
+        new(sourceName, sweep.Identity, recipe, sweep, null, [], [], null, ImmutableDictionary<string, FigureValue>.Empty, Verdict.Rejected(problem), problem) { Search = search };
 
     /// <summary>A unit whose sweep failed a data-quality gate: not fitted, ruled retest.</summary>
     internal static UnitEvaluation Screened(string sourceName, Recipe recipe, Sweep sweep, Verdict verdict) =>

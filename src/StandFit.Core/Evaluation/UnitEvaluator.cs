@@ -1,5 +1,7 @@
+using StandFit.Core.Curve;
 using StandFit.Core.Diagnostics;
 using StandFit.Core.Fitting;
+using StandFit.Core.Fitting.Nonlinear;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
 using StandFit.Core.Problems;
@@ -12,8 +14,9 @@ namespace StandFit.Core.Evaluation;
 
 /// <summary>
 /// The pipeline for one unit, with no I/O: assemble the sweep with the recipe's columns, fit the
-/// recipe's model (weighted when the recipe says so), put t-based error bars on the parameters and
-/// the derived quantities, compute the residual diagnostics and figures of merit, resample when the
+/// recipe's model (a linear model by QR, weighted when the recipe says so; an expression model by
+/// Levenberg-Marquardt, a search that gives no solution rejecting the unit), put t-based error bars
+/// on the parameters, the derived quantities and the uses of the curve, compute the residual diagnostics and figures of merit, resample when the
 /// recipe asks, run the residual gates, and judge.
 /// </summary>
 public static class UnitEvaluator
@@ -37,7 +40,7 @@ public static class UnitEvaluator
     public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null)
     {
         // A sweep no fit can use is rejected; a sweep that fails a data-quality gate is ruled retest.
-        var model = modelOverride ?? recipe.Model;
+        CurveModel model = modelOverride ?? recipe.Model;
         var uncertainties = sweep.Uncertainties;
         if (recipe.Weights is { } rule)
         {
@@ -62,24 +65,42 @@ public static class UnitEvaluator
             return UnitEvaluation.Screened(sourceName, recipe, sweep, Verdict.From(screened));
         }
 
-        var fitted = LeastSquaresFitter.Fit(model, data);
-        if (!fitted.IsSuccess)
+        IFitResult fit;
+        if (model is ExpressionModel expression)
         {
-            return UnitEvaluation.Rejected(sourceName, fitted.Problems[0], sweep.Identity, recipe, sweep);
+            var searched = NonlinearFitter.Fit(expression, data);
+            if (searched.Problem is { } problem)
+            {
+                return searched.Search is { } search
+                    ? UnitEvaluation.RejectedSearch(sourceName, problem, recipe, sweep, search)
+                    : UnitEvaluation.Rejected(sourceName, problem, sweep.Identity, recipe, sweep);
+            }
+
+            fit = searched.Search!;
+        }
+        else
+        {
+            var fitted = LeastSquaresFitter.Fit((LinearModel)model, data);
+            if (!fitted.IsSuccess)
+            {
+                return UnitEvaluation.Rejected(sourceName, fitted.Problems[0], sweep.Identity, recipe, sweep);
+            }
+
+            fit = fitted.Value;
         }
 
-        var fit = fitted.Value;
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
-        var derived = DerivedEstimates.Compute(fit, recipe.Confidence);
+        var derived = fit is FitResult linear ? DerivedEstimates.Compute(linear, recipe.Confidence) : [];
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
 
         var diagnostics = ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), recipe.DiagnosticsOptions);
-        var figures = FigureTable.Compute(fit, parameters, derived, runs, recipe, diagnostics);
+        var curve = CurveFigures.Compute(fit, recipe);
+        var figures = FigureTable.Compute(fit, parameters, derived, curve, runs, recipe, diagnostics);
         var findings = new List<Finding>();
         ResamplingResult? resampling = null;
-        if (recipe.Resampling is { } plan)
+        if (recipe.Resampling is { } plan && fit is FitResult resampled)
         {
-            resampling = ResamplingAnalysis.Run(fit, sweep, recipe, plan, StreamSeed.Derive(plan.Seed, sweep.Identity.Serial, sourceSha256 ?? ""));
+            resampling = ResamplingAnalysis.Run(resampled, sweep, recipe, plan, StreamSeed.Derive(plan.Seed, sweep.Identity.Serial, sourceSha256 ?? ""));
             figures = resampling.Attach(figures);
             findings.AddRange(resampling.Findings);
         }
@@ -88,7 +109,8 @@ public static class UnitEvaluator
         {
             if (!figures.TryGetValue(limit.Figure, out var figure))
             {
-                // A model override without the recipe's figure, or a runs figure on residuals without signs.
+                // A model override without the recipe's figure, a runs figure on residuals without
+                // signs, an inverse prediction outside the calibrated range.
                 findings.Add(new Finding(ReasonCodes.LimitNotEvaluated.Code, ReasonCodes.LimitNotEvaluated.Kind, Messages.LimitNotEvaluated(limit.Figure)));
                 continue;
             }
@@ -106,6 +128,6 @@ public static class UnitEvaluator
             findings.Add(diagnosticGate.Judge(diagnostics, sweep.SourceLines));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling, diagnostics);
+        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling, diagnostics, curve);
     }
 }

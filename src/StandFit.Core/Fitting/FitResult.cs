@@ -13,7 +13,7 @@ namespace StandFit.Core.Fitting;
 /// curve sets the scale, as R's lm(weights = ...) does.
 /// </para>
 /// </summary>
-public sealed class FitResult
+public sealed class FitResult : IFitResult
 {
     internal FitResult(
         LinearModel model,
@@ -62,6 +62,13 @@ public sealed class FitResult
 
     public LinearModel Model { get; }
 
+    public string ModelName => Model.Name;
+
+    public ImmutableArray<string> ParameterNames => Model.ParameterNames;
+
+    /// <summary>True when the model has a constant term.</summary>
+    public bool HasIntercept => Model.HasIntercept;
+
     /// <summary>Number of points.</summary>
     public int Count => Output.Length;
 
@@ -87,7 +94,7 @@ public sealed class FitResult
     /// <summary>w_i = 1/u_i^2 of each point; all 1 when unweighted.</summary>
     public ImmutableArray<double> Weights { get; }
 
-    /// <summary>Parameter estimates in <see cref="LinearModel.ParameterNames"/> order.</summary>
+    /// <summary>Parameter estimates in <see cref="ParameterNames"/> order.</summary>
     public ImmutableArray<double> Estimates { get; }
 
     /// <summary>Covariance matrix of the estimates, p x p row-major, s^2 (X'WX)^-1 (from the QR factors).</summary>
@@ -170,7 +177,32 @@ public sealed class FitResult
         }
     }
 
-    private static ImmutableArray<double> CorrelationOf(ImmutableArray<double> covariance, int p)
+    /// <summary>The fitted curve at <paramref name="x"/>; its gradient with respect to the parameters is the basis there.</summary>
+    public double ValueAt(ReadOnlySpan<double> x, Span<double> gradient)
+    {
+        Model.FillBasis(x, gradient);
+        return Model.Evaluate(Estimates.AsSpan(), x);
+    }
+
+    /// <summary>The slope d y / d x_input at <paramref name="x"/>; its gradient with respect to the parameters is the basis's derivative there.</summary>
+    public double SlopeAt(ReadOnlySpan<double> x, int input, Span<double> gradient)
+    {
+        Model.FillBasisDerivative(x, input, gradient);
+        return Dot(gradient, Estimates.AsSpan());
+    }
+
+    private static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
+    {
+        var sum = 0.0;
+        for (var j = 0; j < a.Length; j++)
+        {
+            sum += a[j] * b[j];
+        }
+
+        return sum;
+    }
+
+    internal static ImmutableArray<double> CorrelationOf(ImmutableArray<double> covariance, int p)
     {
         var correlation = new double[p * p];
         for (var i = 0; i < p; i++)

@@ -32,8 +32,11 @@ public static class LeastSquaresFitter
     /// Whether any fit of <paramref name="model"/> is possible on these inputs: enough points for
     /// error bars, inputs that move, enough distinct points. Null when it is.
     /// </summary>
-    public static Problem? CheckFeasible(LinearModel model, FitData data)
+    public static Problem? CheckFeasible(CurveModel model, FitData data)
     {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(data);
+        var hasIntercept = model is not LinearModel linear || linear.HasIntercept;
         var n = data.Count;
         var p = model.ParameterCount;
         var where = SourceLocation.WholeFile(data.SourceName);
@@ -51,7 +54,7 @@ public static class LeastSquaresFitter
                 max = Math.Max(max, v);
             }
 
-            if ((model.HasIntercept && min == max) || (!model.HasIntercept && min == 0 && max == 0))
+            if ((hasIntercept && min == max) || (!hasIntercept && min == 0 && max == 0))
             {
                 return new Problem(
                     ReasonCodes.FitZeroStimulusSpread.Code,

@@ -10,21 +10,10 @@ namespace StandFit.Core.Fitting;
 /// input values outside its domain (ln needs x &gt; 0), and derive trade coefficients from its
 /// parameters.
 /// </summary>
-public abstract class LinearModel
+public abstract class LinearModel : CurveModel
 {
-    /// <summary>The model's name as recipes and outputs write it.</summary>
-    public abstract string Name { get; }
-
-    /// <summary>Parameter names in output order.</summary>
-    public abstract ImmutableArray<string> ParameterNames { get; }
-
-    public int ParameterCount => ParameterNames.Length;
-
     /// <summary>True when the model has a constant term (R^2 is then the centred one).</summary>
     public abstract bool HasIntercept { get; }
-
-    /// <summary>Number of inputs (stimulus columns) the model takes.</summary>
-    public virtual int InputCount => 1;
 
     /// <summary>The natural basis functions f_j at the point <paramref name="x"/>: one value per parameter.</summary>
     public abstract void FillBasis(ReadOnlySpan<double> x, Span<double> row);
@@ -123,9 +112,6 @@ public abstract class LinearModel
     /// <summary>What the fitted response is, when it is not the output column itself ("1/T in 1/K"), or null.</summary>
     public virtual string? ResponseDescription => null;
 
-    /// <summary>Names of the quantities derived from the parameters (the trade's own coefficients), in output order.</summary>
-    public virtual ImmutableArray<string> DerivedNames => [];
-
     /// <summary>
     /// The derived quantities from natural parameters <paramref name="parameters"/>, and their
     /// Jacobian (d x p, row-major) for the delta method.
@@ -137,14 +123,6 @@ public abstract class LinearModel
             throw new NotSupportedException(Name + " names derived quantities but does not compute them.");
         }
     }
-
-    /// <summary>The unit of parameter <paramref name="parameter"/>, from the units of the inputs and the output ("" when none are given).</summary>
-    public abstract string UnitOf(int parameter, ImmutableArray<string> inputUnits, string outputUnit);
-
-    /// <summary>The unit of derived quantity <paramref name="derived"/>.</summary>
-    public virtual string DerivedUnitOf(int derived, ImmutableArray<string> inputUnits, string outputUnit) => "";
-
-    public override string ToString() => Name;
 
     private void RequireSingleInput()
     {

@@ -78,7 +78,27 @@ public static class Messages
     public static string NominalNeeded(string figure) => F($"limit on '{figure}', an error against the nominal curve, but the recipe has no 'nominal' section; add 'nominal: {{ offset: ..., gain: ... }}'.");
     public static string DecisionNeeded() => "the recipe has limits but no 'decision' section; say 'decision: { rule: guarded }' or 'rule: simple' so the decision rule is agreed, not assumed.";
     public static string CoverageWithoutGuarded(string where) => F($"{where} gives a coverage factor but the rule is 'simple'; remove 'coverage_factor' or use 'rule: guarded'.");
-    public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at' or 'value_at'.");
+    public static string DerivedNeedsOneKey(string where) => F($"{where} needs exactly one of 'sensitivity_at', 'value_at', 'band_at' or 'inverse_at'.");
+    public static string RecipeBadExpression(string where, int column, string excerpt, string message) => column > 0
+        ? F($"{where}, column {column} of the expression ('{excerpt}'): {message}")
+        : F($"{where} ('{excerpt}'): {message}");
+    public static string RecipeExpressionNotAnInput(string where, int column, string name, IEnumerable<string> inputs) =>
+        F($"{where}, column {column} of the expression: '{name}' is not a stimulus input of this recipe; the inputs are {string.Join(", ", inputs)} (one per 'columns.stimulus' column, in order). Fix the name, or name the column under 'columns.stimulus'.");
+    public static string RecipeExpressionUndeclared(string where, int column, string name, IEnumerable<string> declared, string? suggestion) =>
+        F($"{where}, column {column} of the expression: '{name}' is used but is not declared under 'model.parameters' (declared: {string.Join(", ", declared)}).{(suggestion is null ? "" : $" Did you mean '{suggestion}'?")} Declare it with a start value, or fix the name.");
+    public static string RecipeParameterUnused(string path, string expression) => F($"{path} is declared, but the expression '{expression.ReplaceLineEndings(" ")}' does not use it, so it could not be fitted. Remove it or use it.");
+    public static string RecipeBadParameterName(string path, string name, bool reserved, bool input) => input
+        ? F($"{path}: '{name}' is the name of a stimulus input (x, x1, x2 ...), not a parameter; choose another name.")
+        : reserved
+            ? F($"{path}: '{name}' is a function or constant of the expression language; choose another name.")
+            : F($"{path}: '{name}' is not a parameter name; use a letter or '_' followed by letters, digits or '_' (at most 64).");
+    public static string RecipeStartOutsideBounds(string path, string start, double? min, double? max) =>
+        F($"{path} is {start}, outside the parameter's bounds [{(min is { } lo ? Numbers.Format(lo) : "-inf")}, {(max is { } hi ? Numbers.Format(hi) : "inf")}]; the search must start inside them.");
+    public static string RecipeParametersEmpty(string path) => F($"{path} declares no parameter; declare each parameter of the expression with its start value, for example R25: {{ start: 10000 }}.");
+    public static string RecipeNotForExpression(string what) => F($"{what} cannot be used with model type 'expression': it needs a model linear in its parameters (weights, resampling kernels, the curvature test of the next polynomial power). Remove it, or use a linear model type.");
+    public static string RecipeDerivedOneInput(string path, int inputs) => F($"{path} is a point on a curve of one stimulus, but the recipe names {inputs} stimulus columns; derived figures need a model of one input.");
+    public static string RecipeCurveUseNeedsRule(string path) => F($"{path} needs the standard uncertainty of a new reading, which a weighted fit takes from the recipe's rule; 'weights.column' gives it only for the sweep's own readings. Use 'weights: {{ u_fixed: ..., u_relative: ... }}', or a value_at figure.");
+    public static string RecipeCurveUseTransformed(string path, string model) => F($"{path} on a weighted '{model}' fit would need a new reading's uncertainty on the fitted response's scale, which the weight rule does not give; remove the weights or use a value_at figure.");
     public static string DerivedNameClash(string name) => F($"derived figure '{name}' has the name of a figure the fit already produces; choose another name.");
     public static string PartsNeeded() => "a recipe that is not 'family: true' needs 'parts' (the part numbers it judges).";
     public static string FamilyNotFound(string name, IEnumerable<string> known)
@@ -187,6 +207,9 @@ public static class Messages
     public static string NonlinearMaxIterations(int limit) => F($"did not converge: stopped at the limit of {limit} iterations, and the estimates are not a solution. Check the start values and the model.");
     public static string NonlinearNonFinite(int iterations) => F($"did not converge: the model or its derivatives were not finite (NaN or infinite) after {iterations} iterations, at the start values or at the point reached. Check the start values and the model's domain (ln, sqrt and powers of negative numbers, division by zero).");
     public static string NonlinearSingularJacobian(int iterations, double condition) => F($"no solution with error bars: after {iterations} iterations the search stopped where the Jacobian is singular (condition number {Numbers.Format(condition, 3)}), so the data cannot separate the parameters. Check the model, its parameters and the sweep.");
+    public static string NonlinearFitRejected(string status, int iterations, string reason) => F($"the nonlinear fit stopped with status {status} after {iterations} iterations; {reason}");
+    public static string NonlinearNotFiniteResult(string status, int iterations) => F($"the nonlinear fit ended ({status}, {iterations} iterations) with an estimate, standard error or residual that is not a finite number; no result is reported. Check the start values, the bounds and the model's domain.");
+    public static string NonlinearAtBound(string parameter, string side, double bound, int iterations) => F($"the nonlinear fit ended after {iterations} iterations with '{parameter}' on its {side} bound {Numbers.Format(bound, 6)}: the estimate is held by the bound, so it and its standard error describe no least-squares solution. Check the unit, or the recipe's bounds.");
 
     // ---- findings ----------------------------------------------------------------------------
     public static string LimitFinding(string figure, string unit, double low, double high, string relation, double? min, double? max)

@@ -67,6 +67,8 @@ public static class ReasonCodes
     public static readonly ReasonCode FitRankDeficient = new("fit.rank_deficient", ReasonKind.Reject, "The stimulus values cannot separate the model's parameters (too few distinct set points).");
     public static readonly ReasonCode FitDomain = new("fit.domain", ReasonKind.Reject, "A point lies outside the model's domain (for example ln of a stimulus that is not positive); the message names its line.");
     public static readonly ReasonCode FitNonFinite = new("fit.non_finite", ReasonKind.Reject, "The fit produced a non-finite number.");
+    public static readonly ReasonCode FitNotConverged = new("fit.not_converged", ReasonKind.Reject, "The nonlinear fit of an expression model did not converge (iteration limit); its estimates are not a solution.");
+    public static readonly ReasonCode FitAtBound = new("fit.at_bound", ReasonKind.Reject, "A parameter of an expression model ended on one of the bounds the recipe sets: its estimate and standard error do not describe a least-squares solution.");
 
     // A bug in the tool: the unit is rejected and the worker goes on.
     public static readonly ReasonCode InternalError = new("internal.error", ReasonKind.Reject, "The tool failed on this unit; the operations log has the stack trace.");
@@ -116,7 +118,7 @@ public static class ReasonCodes
         InputWrongColumnCount, InputMissingColumn, InputBadNumber, InputNonFinite, InputBadLeg, InputBadUncertainty, InputTruncated, InputWrongSeparator,
         InputDuplicate, InputNoRecipe,
         SweepTooFewPoints, SweepSpanShort, SweepLegMissing, SweepLegNotMonotonic, SweepOutputSaturated, SweepDuplicateRows,
-        FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitDomain, FitNonFinite,
+        FitTooFewPoints, FitZeroStimulusSpread, FitRankDeficient, FitDomain, FitNonFinite, FitNotConverged, FitAtBound,
         InternalError,
         LimitWithin, LimitAbove, LimitBelow, LimitStraddles, LimitNotEvaluated,
         RunsOk, RunsNotApplicable, RunsStructure,

@@ -77,7 +77,7 @@ public sealed class Recipe
         ImmutableArray<string> parts,
         ColumnMap columns,
         ColumnUnits units,
-        LinearModel model,
+        CurveModel model,
         ConfidenceLevel confidence,
         ImmutableArray<FigureLimit> limits,
         RunsGate? runsGate,
@@ -127,7 +127,8 @@ public sealed class Recipe
 
     public ColumnUnits Units { get; }
 
-    public LinearModel Model { get; }
+    /// <summary>The model fitted: a <see cref="LinearModel"/> (least squares by QR) or an <see cref="Fitting.Nonlinear.ExpressionModel"/> (Levenberg-Marquardt).</summary>
+    public CurveModel Model { get; }
 
     public ConfidenceLevel Confidence { get; }
 

@@ -107,6 +107,58 @@ public sealed class DerivedRecord
     public double StandardError { get; set; }
 }
 
+/// <summary>One derived figure of the fitted curve (the recipe's <c>derived</c>), as a struct inside the summary row's <c>curve</c> list.</summary>
+public sealed class CurveRecord
+{
+    [JsonPropertyName("name")]
+    [ParquetRequired]
+    public string Name { get; set; } = "";
+
+    /// <summary>sensitivity_at, value_at, band_at or inverse_at.</summary>
+    [JsonPropertyName("kind")]
+    [ParquetRequired]
+    public string Kind { get; set; } = "";
+
+    /// <summary>The stimulus point (the output value for inverse_at).</summary>
+    [JsonPropertyName("at")]
+    public double At { get; set; }
+
+    /// <summary>ok, outside-range, not-monotonic or non-finite.</summary>
+    [JsonPropertyName("status")]
+    [ParquetRequired]
+    public string Status { get; set; } = "";
+
+    [JsonPropertyName("unit")]
+    public string? Unit { get; set; }
+
+    [JsonPropertyName("value")]
+    public double? Value { get; set; }
+
+    [JsonPropertyName("se")]
+    public double? StandardError { get; set; }
+
+    [JsonPropertyName("ci_low")]
+    public double? CiLow { get; set; }
+
+    [JsonPropertyName("ci_high")]
+    public double? CiHigh { get; set; }
+
+    [JsonPropertyName("prediction_low")]
+    public double? PredictionLow { get; set; }
+
+    [JsonPropertyName("prediction_high")]
+    public double? PredictionHigh { get; set; }
+
+    [JsonPropertyName("slope")]
+    public double? Slope { get; set; }
+
+    [JsonPropertyName("interval_low")]
+    public double? IntervalLow { get; set; }
+
+    [JsonPropertyName("interval_high")]
+    public double? IntervalHigh { get; set; }
+}
+
 /// <summary>
 /// One row of the summary table (output/summaries/date=YYYY-MM-DD/*.parquet): one unit, its
 /// identity, the recipe that judged it, the fit and the ruling. docs/outputs.md documents every
@@ -115,7 +167,7 @@ public sealed class DerivedRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 6;
+    public const int CurrentSchemaVersion = 7;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -179,12 +231,34 @@ public sealed class SummaryRecord
     [JsonPropertyName("weighted")]
     public bool? Weighted { get; set; }
 
+    /// <summary>How the Levenberg-Marquardt search of an expression model ended (converged-rss ... max-iterations); null for linear models.</summary>
+    [JsonPropertyName("fit_status")]
+    public string? FitStatus { get; set; }
+
+    [JsonPropertyName("fit_iterations")]
+    public int? FitIterations { get; set; }
+
+    [JsonPropertyName("fit_stop_reason")]
+    public string? FitStopReason { get; set; }
+
     [JsonPropertyName("parameters")]
     public List<ParameterRecord> Parameters { get; set; } = [];
 
     /// <summary>The model's derived quantities (the trade's own coefficients), with delta-method standard errors.</summary>
     [JsonPropertyName("derived")]
     public List<DerivedRecord> Derived { get; set; } = [];
+
+    /// <summary>Covariance of the estimates, p x p row-major in <c>parameters</c> order.</summary>
+    [JsonPropertyName("covariance")]
+    public List<double> Covariance { get; set; } = [];
+
+    /// <summary>Correlation of the estimates, p x p row-major in <c>parameters</c> order.</summary>
+    [JsonPropertyName("correlation")]
+    public List<double> Correlation { get; set; } = [];
+
+    /// <summary>The recipe's derived figures of the curve: sensitivities, values, bands, inverse predictions.</summary>
+    [JsonPropertyName("curve")]
+    public List<CurveRecord> Curve { get; set; } = [];
 
     [JsonPropertyName("offset_estimate")]
     public double? OffsetEstimate { get; set; }

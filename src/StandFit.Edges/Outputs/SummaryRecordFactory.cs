@@ -30,14 +30,17 @@ public static class SummaryRecordFactory
             RecipeName = recipe?.Name,
             RecipeVersion = recipe?.Version,
             RecipeHash = recipe?.ContentHash,
-            Model = fit?.Model.Name ?? recipe?.Model.Name,
+            Model = fit?.ModelName ?? recipe?.Model.Name,
             Confidence = recipe?.Confidence.Value,
             Points = unit.Sweep?.Count,
             DegreesOfFreedom = fit?.DegreesOfFreedom,
             Weighted = fit?.IsWeighted,
             ResidualSd = fit?.ResidualSd,
-            RSquared = fit?.RSquared,
-            AdjustedRSquared = fit?.AdjustedRSquared,
+            RSquared = Finite(fit?.RSquared),
+            AdjustedRSquared = Finite(fit?.AdjustedRSquared),
+            FitStatus = unit.Search?.StatusCode,
+            FitIterations = unit.Search?.Iterations,
+            FitStopReason = unit.Search?.StatusReason,
             ConditionNumber = fit?.ConditionNumber,
             RunsCount = unit.Runs?.Runs,
             RunsZ = unit.Runs is { IsApplicable: true } r ? r.Z : null,
@@ -92,6 +95,44 @@ public static class SummaryRecordFactory
                 Unit = recipe?.UnitOf(d.Name),
                 Estimate = d.Estimate,
                 StandardError = d.StandardError,
+            });
+        }
+
+        if (fit is not null)
+        {
+            record.Covariance = [.. fit.Covariance];
+            record.Correlation = [.. fit.Correlation];
+        }
+
+        foreach (var c in unit.Curve)
+        {
+            record.Curve.Add(new CurveRecord
+            {
+                Name = c.Name,
+                Kind = c.Kind switch
+                {
+                    DerivedKind.SensitivityAt => "sensitivity_at",
+                    DerivedKind.ValueAt => "value_at",
+                    DerivedKind.BandAt => "band_at",
+                    _ => "inverse_at",
+                },
+                At = c.At,
+                Status = c.StatusCode,
+                Unit = recipe is null ? null : c.Kind switch
+                {
+                    DerivedKind.SensitivityAt => recipe.UnitOfSensitivity(),
+                    DerivedKind.InverseAt => recipe.Units.Stimulus,
+                    _ => recipe.Units.Output,
+                },
+                Value = c.IsOk ? c.Value : null,
+                StandardError = c.IsOk ? c.StandardError : null,
+                CiLow = c.IsOk ? c.Low : null,
+                CiHigh = c.IsOk ? c.High : null,
+                PredictionLow = c.IsOk ? c.PredictionLow : null,
+                PredictionHigh = c.IsOk ? c.PredictionHigh : null,
+                Slope = c.IsOk ? c.Slope : null,
+                IntervalLow = c.IsOk ? c.IntervalLow : null,
+                IntervalHigh = c.IsOk ? c.IntervalHigh : null,
             });
         }
 
@@ -186,6 +227,8 @@ public static class SummaryRecordFactory
             record.LowerLimitFactor = m.LowerLimitFactor;
         }
     }
+
+    private static double? Finite(double? value) => value is { } v && double.IsFinite(v) ? v : null;
 
     public static string RulingText(Ruling ruling) => ruling switch
     {

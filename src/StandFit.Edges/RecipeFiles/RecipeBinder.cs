@@ -101,6 +101,8 @@ public static partial class RecipeBinder
         var setPointTolerance = ReadSetPoints(top);
         var nominal = ReadNominal(top);
         CheckNominalFigures(top, limits, nominal);
+        CheckExpressionRecipe(top, model);
+        CheckCurveUses(top, model, derived, inputCount);
 
         if (sink.HasProblems || name is null || version is null || columns is null || model is null || confidence is null || weights is null)
         {
@@ -245,7 +247,7 @@ public static partial class RecipeBinder
         return new ColumnUnits(inputs.Count == 0 ? [""] : [.. inputs.Select(i => i.Text)], output);
     }
 
-    private static LinearModel? ReadModel(MapReader top, int inputCount)
+    private static CurveModel? ReadModel(MapReader top, int inputCount)
     {
         var model = top.Map("model", ModelKeys, required: true);
         if (model is null)
@@ -267,7 +269,7 @@ public static partial class RecipeBinder
 
         // Keys that belong to one model type only.
         var ok = true;
-        foreach (var (key, owner) in new[] { ("degree", "polynomial"), ("terms", "basis"), ("temperature", "steinhart-hart") })
+        foreach (var (key, owner) in new[] { ("degree", "polynomial"), ("terms", "basis"), ("temperature", "steinhart-hart"), ("expression", "expression"), ("parameters", "expression"), ("max_iterations", "expression") })
         {
             if (type != owner && model.Node(key) is { } stray)
             {
@@ -276,7 +278,7 @@ public static partial class RecipeBinder
             }
         }
 
-        if (type != "basis" && inputCount != 1)
+        if (type is not ("basis" or "expression") && inputCount != 1)
         {
             model.Sink.Add(RecipeCodes.Contradiction, Messages.ModelTakesOneInput(type, inputCount), model.Node("type"));
             ok = false;
@@ -290,6 +292,9 @@ public static partial class RecipeBinder
                 return ok ? Polynomial.StraightLineThroughZero : null;
             case "callendar-van-dusen":
                 return ok ? CallendarVanDusen.AboveZero : null;
+            case "expression":
+                var expression = ReadExpression(model, inputCount);
+                return ok ? expression : null;
             case "steinhart-hart":
                 var temperature = model.Text("temperature", required: true);
                 if (temperature is null)
@@ -564,7 +569,7 @@ public static partial class RecipeBinder
 
     private static KeySpec CoverageSpec() => Root.Child("decision").Child("coverage_factor");
 
-    private static ImmutableArray<DerivedFigure> ReadDerived(MapReader top, LinearModel? model)
+    private static ImmutableArray<DerivedFigure> ReadDerived(MapReader top, CurveModel? model)
     {
         var section = top.Map("derived", knownKeys: null, required: false);
         if (section is null)
@@ -589,28 +594,24 @@ public static partial class RecipeBinder
                 continue;
             }
 
-            var sensitivity = figure.Number("sensitivity_at", required: false);
-            var value = figure.Number("value_at", required: false);
-            if (figure.Has("sensitivity_at") == figure.Has("value_at"))
+            var kinds = new[] { ("sensitivity_at", DerivedKind.SensitivityAt), ("value_at", DerivedKind.ValueAt), ("band_at", DerivedKind.BandAt), ("inverse_at", DerivedKind.InverseAt) };
+            var given = kinds.Where(k => figure.Has(k.Item1)).ToList();
+            if (given.Count != 1)
             {
                 figure.Sink.Add(RecipeCodes.BadValue, Messages.DerivedNeedsOneKey(figure.Where), entry.Value);
                 continue;
             }
 
-            if (sensitivity is { } s)
+            if (figure.Number(given[0].Item1, required: true) is { } at)
             {
-                builder.Add(new DerivedFigure(name, DerivedKind.SensitivityAt, s));
-            }
-            else if (value is { } v)
-            {
-                builder.Add(new DerivedFigure(name, DerivedKind.ValueAt, v));
+                builder.Add(new DerivedFigure(name, given[0].Item2, at));
             }
         }
 
         return builder.ToImmutable();
     }
 
-    private static ImmutableArray<FigureLimit> ReadLimits(MapReader top, LinearModel? model, ImmutableArray<DerivedFigure> derived, Decision? decision)
+    private static ImmutableArray<FigureLimit> ReadLimits(MapReader top, CurveModel? model, ImmutableArray<DerivedFigure> derived, Decision? decision)
     {
         var limits = top.Map("limits", knownKeys: null, required: false);
         if (limits is null)
@@ -682,12 +683,14 @@ public static partial class RecipeBinder
 
     /// <summary>The figures a recipe can limit, in the order a reader expects: parameters, half-widths, derived, fit figures.</summary>
     /// <summary>The figures this model and these derived figures add: parameters, trade coefficients, their half-widths, the recipe's derived figures.</summary>
-    private static IEnumerable<string> ModelFigures(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
+    private static IEnumerable<string> ModelFigures(CurveModel model, ImmutableArray<DerivedFigure> derived) =>
         model.ParameterNames.Concat(model.DerivedNames)
             .Concat(model.ParameterNames.Concat(model.DerivedNames).Select(p => p + FigureTable.HalfWidthSuffix))
-            .Concat(derived.Select(d => d.Name));
+            .Concat(derived.SelectMany(d => d.Kind == DerivedKind.BandAt
+                ? new[] { d.Name, d.Name + FigureTable.HalfWidthSuffix, d.Name + FigureTable.PredictionHalfWidthSuffix }
+                : [d.Name, d.Name + FigureTable.HalfWidthSuffix]));
 
-    private static IEnumerable<string> AllFigures(LinearModel model, ImmutableArray<DerivedFigure> derived) =>
+    private static IEnumerable<string> AllFigures(CurveModel model, ImmutableArray<DerivedFigure> derived) =>
         ModelFigures(model, derived)
             .Concat(FigureTable.FitFigures)
             .Concat(FigureTable.DiagnosticFigures)

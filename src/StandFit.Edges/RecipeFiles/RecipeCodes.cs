@@ -14,4 +14,5 @@ public static class RecipeCodes
     public const string DuplicatePart = "recipe.duplicate_part";
     public const string Unreadable = "recipe.unreadable";
     public const string UnknownFamily = "recipe.unknown_family";
+    public const string BadExpression = "recipe.bad_expression";
 }

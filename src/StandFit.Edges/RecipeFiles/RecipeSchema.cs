@@ -48,7 +48,7 @@ public sealed record KeySpec(string Name, ValueKind Kind, string Description)
 /// </summary>
 public static class RecipeSchema
 {
-    public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial", "basis", "steinhart-hart", "callendar-van-dusen"];
+    public static readonly ImmutableArray<string> ModelTypes = ["straight-line", "straight-line-through-zero", "polynomial", "basis", "steinhart-hart", "callendar-van-dusen", "expression"];
     public static readonly ImmutableArray<string> TemperatureUnits = ["kelvin", "celsius"];
     public static readonly ImmutableArray<string> DecimalSeparators = ["point", "comma"];
     public static readonly ImmutableArray<string> Rules = ["guarded", "simple"];
@@ -112,10 +112,22 @@ public static class RecipeSchema
                 Required = true,
                 Children =
                 [
-                    new("type", ValueKind.Text, "straight-line, straight-line-through-zero, polynomial, basis, steinhart-hart or callendar-van-dusen.") { Required = true, Choices = ModelTypes },
+                    new("type", ValueKind.Text, "straight-line, straight-line-through-zero, polynomial, basis, steinhart-hart, callendar-van-dusen or expression.") { Required = true, Choices = ModelTypes },
                     new("degree", ValueKind.Integer, "Polynomial degree, 1 to 10 (type: polynomial only).") { Minimum = 1, Maximum = 10 },
                     new("terms", ValueKind.TextList, "The basis terms of type: basis, e.g. [1, ln(x), ln(x)^3] or [1, x1, x2, x1*x2] (docs/recipes.md lists the functions)."),
                     new("temperature", ValueKind.Text, "type: steinhart-hart only: the unit of the fitted temperature, kelvin or celsius.") { Choices = TemperatureUnits },
+                    new("expression", ValueKind.Text, "type: expression only: the curve in the expression language (docs/expressions.md), over the stimulus x (x1, x2 ... for several columns) and the parameters declared under 'parameters', e.g. R25*exp(beta*(1/x - 1/298.15))."),
+                    new("parameters", ValueKind.NamedMaps, "type: expression only: every parameter of the expression, by name, in the order of the estimates, each with its start value and optional bounds.")
+                    {
+                        Children =
+                        [
+                            new("start", ValueKind.Number, "Where the Levenberg-Marquardt search starts; within min and max.") { Required = true },
+                            new("min", ValueKind.Number, "Lower bound of the parameter (inclusive); a fit that ends on it rejects the unit (fit.at_bound)."),
+                            new("max", ValueKind.Number, "Upper bound of the parameter (inclusive); a fit that ends on it rejects the unit (fit.at_bound)."),
+                            new("unit", ValueKind.Text, "The parameter's unit, free text, for the outputs."),
+                        ],
+                    },
+                    new("max_iterations", ValueKind.Integer, "type: expression only: the most Levenberg-Marquardt iterations (default 1000); a search that reaches it rejects the unit (fit.not_converged).") { Minimum = 1, Maximum = 100000 },
                 ],
             },
             new("weights", ValueKind.Map, "Weighted least squares: standard uncertainties from a column, or the rule u = u_fixed + u_relative |y|.")
@@ -157,12 +169,14 @@ public static class RecipeSchema
                     new("duplicate_rows", ValueKind.Boolean, "true: two points with the same stimulus, output and leg mark a duplicated row."),
                 ],
             },
-            new("derived", ValueKind.NamedMaps, "Figures computed from the curve, by a name of your choosing, each with one of the keys below; limits can name them.")
+            new("derived", ValueKind.NamedMaps, "Figures computed from the curve, by a name of your choosing, each with exactly one of the keys below; limits can name them (and NAME.half_width; NAME.prediction_half_width for band_at).")
             {
                 Children =
                 [
                     new("sensitivity_at", ValueKind.Number, "The sensitivity dy/dx at this stimulus, with its standard error."),
                     new("value_at", ValueKind.Number, "The fitted output at this stimulus, with its standard error."),
+                    new("band_at", ValueKind.Number, "The fitted output at this stimulus with its standard error, its confidence band and the prediction band of a new reading."),
+                    new("inverse_at", ValueKind.Number, "Inverse prediction: the stimulus at which the curve gives this output (on the fitted response's scale), with its standard error by the calibration formula and the inverse interval."),
                 ],
             },
             new("limits", ValueKind.NamedMaps, "Specification limits, by figure: a parameter (offset, gain, c2 ...), PARAMETER.half_width, a derived figure, a fit figure (residual_sd, r_squared, adj_r_squared, condition_number, runs_p, runs_z), a diagnostic (dw_p, sw_p, ad_p, bp_p, lof_p, curvature_p, max_abs_rstudent, outlier_p ...) or a figure of merit (nonlinearity_terminal_pct, nonlinearity_ls_pct, nonlinearity_minimax_pct, hysteresis_pct, nonrepeatability_pct, llf ...); the last two kinds take rule: simple only.")

@@ -206,7 +206,7 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
     {
         var rows = CodeRows(Page("recipes.md"), "### Figures a limit can name").Select(r => r.Code).ToList();
 
-        Assert.Equal(["<parameter>", "<parameter>" + FigureTable.HalfWidthSuffix, "<name>", .. FigureTable.FitFigures], rows);
+        Assert.Equal(["<parameter>", "<parameter>" + FigureTable.HalfWidthSuffix, "<name>", "<name>" + FigureTable.HalfWidthSuffix, "<name>" + FigureTable.PredictionHalfWidthSuffix, .. FigureTable.FitFigures], rows);
     }
 
     [Fact]

@@ -53,7 +53,23 @@ internal static class ExpressionCompiler
         var depth = 0;
         var maxDepth = 0;
         Emit(folded, program, ref depth, ref maxDepth);
-        return ExpressionParseResult.Success(new ModelExpression(text, variables, parameters, [.. program], maxDepth));
+        return ExpressionParseResult.Success(new ModelExpression(text, variables, parameters, [.. program], maxDepth, folded));
+    }
+
+    /// <summary>
+    /// Compiles a derivative tree made by <see cref="ExpressionDifferentiator"/>. A constant part
+    /// without a finite value is kept as it is (its NaN or infinity shows in the slope's value, never
+    /// as an error): the expression itself was valid.
+    /// </summary>
+    internal static ModelExpression CompileDerivative(string text, ExpressionNode root, ImmutableArray<string> variables, ImmutableArray<string> parameters)
+    {
+        ExpressionError? ignored = null;
+        var folded = Fold(root, ref ignored);
+        var program = new List<Instruction>();
+        var depth = 0;
+        var maxDepth = 0;
+        Emit(folded, program, ref depth, ref maxDepth);
+        return new ModelExpression(text, variables, parameters, [.. program], maxDepth, folded);
     }
 
     /// <summary>The value of one operation on plain numbers (the folding of constants uses the evaluator's own arithmetic).</summary>

@@ -15,9 +15,13 @@ public sealed class ModelExpression
 
     private readonly Instruction[] _program;
     private readonly bool _rootIsActive;
+    private readonly ExpressionNode? _tree;
+    private readonly ModelExpression?[] _inputDerivatives;
 
-    internal ModelExpression(string text, ImmutableArray<string> variableNames, ImmutableArray<string> parameterNames, Instruction[] program, int maxStack)
+    internal ModelExpression(string text, ImmutableArray<string> variableNames, ImmutableArray<string> parameterNames, Instruction[] program, int maxStack, ExpressionNode? tree = null)
     {
+        _tree = tree;
+        _inputDerivatives = new ModelExpression?[variableNames.Length];
         Text = text;
         VariableNames = variableNames;
         ParameterNames = parameterNames;
@@ -54,6 +58,28 @@ public sealed class ModelExpression
 
     /// <summary>Index of a parameter by name, or -1.</summary>
     public int IndexOf(string parameter) => ParameterNames.IndexOf(parameter);
+
+    /// <summary>
+    /// The partial derivative of the model with respect to variable <paramref name="variable"/>, as
+    /// an expression over the same variables and parameters (built symbolically once, then kept):
+    /// its value is the curve's slope, and its gradient the slope's exact gradient with respect to
+    /// the parameters. Its values may be NaN or infinite where the model's are not (the slope of
+    /// sqrt(x) at 0).
+    /// </summary>
+    public ModelExpression InputDerivative(int variable)
+    {
+        ArgumentOutOfRangeException.ThrowIfNegative(variable);
+        ArgumentOutOfRangeException.ThrowIfGreaterThanOrEqual(variable, VariableNames.Length);
+        var cached = Volatile.Read(ref _inputDerivatives[variable]);
+        if (cached is not null)
+        {
+            return cached;
+        }
+
+        var tree = _tree ?? throw new InvalidOperationException("This expression keeps no tree to differentiate.");
+        var derivative = ExpressionCompiler.CompileDerivative("d(" + Text + ")/d" + VariableNames[variable], ExpressionDifferentiator.Differentiate(tree, variable), VariableNames, ParameterNames);
+        return Interlocked.CompareExchange(ref _inputDerivatives[variable], derivative, null) ?? derivative;
+    }
 
     /// <summary>
     /// The model's value for one point: <paramref name="parameters"/> in <see cref="ParameterNames"/>

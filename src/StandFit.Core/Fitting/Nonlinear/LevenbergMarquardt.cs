@@ -59,17 +59,27 @@ public static class LevenbergMarquardt
             return new Problem(ReasonCodes.FitTooFewPoints.Code, Messages.TooFewPoints(n, p), SourceLocation.WholeFile(sourceName));
         }
 
-        var flat = new double[n * v];
-        for (var k = 0; k < v; k++)
+        // The solver only reads the data: one variable's column and the response are used in place
+        // (no copies); several variables are interleaved row by row.
+        double[] flat;
+        if (v == 1)
         {
-            var column = variables[k];
-            for (var i = 0; i < n; i++)
+            flat = ImmutableCollectionsMarshal.AsArray(variables[0])!;
+        }
+        else
+        {
+            flat = new double[n * v];
+            for (var k = 0; k < v; k++)
             {
-                flat[(i * v) + k] = column[i];
+                var column = variables[k];
+                for (var i = 0; i < n; i++)
+                {
+                    flat[(i * v) + k] = column[i];
+                }
             }
         }
 
-        var response = y.ToArray();
+        var response = ImmutableCollectionsMarshal.AsArray(y)!;
         var solver = new LevenbergMarquardtSolver(model, flat, response, options, lower, upper);
         var x = start.ToArray();
         var status = solver.Run(x);
@@ -103,10 +113,23 @@ public static class LevenbergMarquardt
 
         var covariance = new double[p * p];
         Array.Fill(covariance, double.NaN);
+        var leverage = new double[n];
+        Array.Fill(leverage, double.NaN);
         var condition = double.PositiveInfinity;
-        var jacobian = new double[n * p];
+        // The search is over: its Jacobian buffer and QR workspace serve the covariance.
+        var jacobian = solver.JacobianBuffer;
+        var design = new double[n * p];
         var finite = status != NonlinearFitStatus.NonFinite && solver.JacobianInto(x, jacobian) && double.IsFinite(rss);
-        var fullRank = finite && Covariance(jacobian, n, p, rss / (n - p), covariance, out condition);
+        for (var i = 0; finite && i < n; i++)
+        {
+            for (var j = 0; j < p; j++)
+            {
+                design[(i * p) + j] = jacobian[(j * n) + i];
+            }
+        }
+
+        var hasIntercept = false;
+        var fullRank = finite && Covariance(solver.Qr, jacobian, n, p, rss / (n - p), covariance, leverage, out condition, out hasIntercept);
         if (status.IsConverged() && !finite)
         {
             status = NonlinearFitStatus.NonFinite;
@@ -126,8 +149,15 @@ public static class LevenbergMarquardt
         }
 
         var reason = Reason(status, solver.Iterations, options, condition);
+        var inputs = ImmutableArray.CreateBuilder<ImmutableArray<double>>(v);
+        foreach (var column in variables)
+        {
+            inputs.Add(column);
+        }
+
         return new NonlinearFitResult(
             model,
+            inputs.MoveToImmutable(),
             start,
             y,
             Wrap(x),
@@ -135,6 +165,9 @@ public static class LevenbergMarquardt
             Wrap(fitted),
             Wrap(residuals),
             ImmutableCollectionsMarshal.AsImmutableArray(atBound),
+            Wrap(design),
+            Wrap(leverage),
+            hasIntercept,
             rss,
             tss,
             condition,
@@ -149,9 +182,10 @@ public static class LevenbergMarquardt
     /// with unit-norm columns, J C^-1 P = Q R: (J'J)^-1 = C^-1 P R^-1 R^-T P' C^-1. False when J is
     /// singular (a zero column or a pivot at or below <see cref="RankTolerance"/> of the largest).
     /// </summary>
-    private static bool Covariance(double[] jacobian, int n, int p, double s2, double[] covariance, out double condition)
+    private static bool Covariance(ReusableQr qr, double[] jacobian, int n, int p, double s2, double[] covariance, double[] leverage, out double condition, out bool hasIntercept)
     {
         condition = double.PositiveInfinity;
+        hasIntercept = false;
         var scale = new double[p];
         for (var j = 0; j < p; j++)
         {
@@ -168,7 +202,6 @@ public static class LevenbergMarquardt
             }
         }
 
-        var qr = new ReusableQr(n, p);
         qr.Factor(jacobian);
         var r = new double[p * p];
         qr.CopyR(r);
@@ -214,6 +247,36 @@ public static class LevenbergMarquardt
             }
         }
 
+        // Leverage h_i = ||R^-T P' j_i||^2 (j_i the scaled Jacobian's row i), and the projection of
+        // the constant vector on the Jacobian's column space, ||R^-T P' J' 1||^2, against n.
+        Span<double> w = p <= 64 ? stackalloc double[p] : new double[p];
+        Span<double> u = p <= 64 ? stackalloc double[p] : new double[p];
+        u.Clear();
+        for (var i = 0; i < n; i++)
+        {
+            var h = 0.0;
+            for (var k = 0; k < p; k++)
+            {
+                var sum = 0.0;
+                for (var m = 0; m <= k; m++)
+                {
+                    sum += jacobian[(qr.Permutation(m) * n) + i] * inverse[(m * p) + k];
+                }
+
+                h += sum * sum;
+                u[k] += sum;
+            }
+
+            leverage[i] = h;
+        }
+
+        var projected = 0.0;
+        foreach (var value in u)
+        {
+            projected += value * value;
+        }
+
+        hasIntercept = n - projected <= 1e-9 * n;
         return true;
     }
 

@@ -92,6 +92,12 @@ internal sealed class LevenbergMarquardtSolver
         _scratch = new double[model.GradientScratchLength];
     }
 
+    /// <summary>The solver's QR workspace (n x p), free for the caller once the search and refinement are done.</summary>
+    internal ReusableQr Qr => _qr;
+
+    /// <summary>The solver's Jacobian buffer (n x p, column-major), free for the caller once the search and refinement are done.</summary>
+    internal double[] JacobianBuffer => _jacobian;
+
     /// <summary>Jacobian evaluations (iterations) so far.</summary>
     public int Iterations { get; private set; }
 

@@ -9,10 +9,11 @@ namespace StandFit.Core.Fitting.Nonlinear;
 /// last accepted point of the search, not a solution. Estimates, covariance and residuals are in
 /// the units of the data as given (the stimulus columns and the response).
 /// </summary>
-public sealed class NonlinearFitResult
+public sealed class NonlinearFitResult : IFitResult
 {
     internal NonlinearFitResult(
         ModelExpression model,
+        ImmutableArray<ImmutableArray<double>> inputs,
         ImmutableArray<double> start,
         ImmutableArray<double> output,
         ImmutableArray<double> estimates,
@@ -20,6 +21,9 @@ public sealed class NonlinearFitResult
         ImmutableArray<double> fitted,
         ImmutableArray<double> residuals,
         ImmutableArray<bool> atBound,
+        ImmutableArray<double> jacobian,
+        ImmutableArray<double> leverage,
+        bool hasIntercept,
         double residualSumOfSquares,
         double totalSumOfSquares,
         double conditionNumber,
@@ -29,6 +33,13 @@ public sealed class NonlinearFitResult
         string statusReason)
     {
         Model = model;
+        Inputs = inputs;
+        Jacobian = jacobian;
+        Leverage = leverage;
+        HasIntercept = hasIntercept;
+        Weights = [.. Enumerable.Repeat(1.0, output.Length)];
+        InputMin = [.. inputs.Select(c => c.IsEmpty ? double.NaN : c.Min())];
+        InputMax = [.. inputs.Select(c => c.IsEmpty ? double.NaN : c.Max())];
         Start = start;
         Output = output;
         Estimates = estimates;
@@ -47,12 +58,58 @@ public sealed class NonlinearFitResult
         ResidualVariance = residualSumOfSquares / DegreesOfFreedom;
         ResidualSd = Math.Sqrt(ResidualVariance);
         RSquared = totalSumOfSquares > 0 ? 1.0 - (residualSumOfSquares / totalSumOfSquares) : double.NaN;
+        AdjustedRSquared = 1.0 - ((1.0 - RSquared) * (output.Length - 1) / DegreesOfFreedom);
         var p = model.ParameterCount;
         StandardErrors = [.. Enumerable.Range(0, p).Select(j => Math.Sqrt(covariance[(j * p) + j]))];
+        Correlation = FitResult.CorrelationOf(covariance, p);
     }
 
     /// <summary>The model that was fitted.</summary>
     public ModelExpression Model { get; }
+
+    /// <summary><c>expression(...)</c>: see <see cref="ExpressionModel.NameOf"/>.</summary>
+    public string ModelName => ExpressionModel.NameOf(Model);
+
+    /// <summary>Number of inputs (the expression's variables).</summary>
+    public int InputCount => Inputs.Length;
+
+    /// <summary>One column per variable of the model, as given to the fit.</summary>
+    public ImmutableArray<ImmutableArray<double>> Inputs { get; }
+
+    /// <summary>The first (or only) input.</summary>
+    public ImmutableArray<double> Stimulus => Inputs[0];
+
+    /// <summary>The smallest value of each input: with <see cref="InputMax"/>, the calibrated range.</summary>
+    public ImmutableArray<double> InputMin { get; }
+
+    public ImmutableArray<double> InputMax { get; }
+
+    /// <summary>False: the Levenberg-Marquardt fit is unweighted.</summary>
+    public bool IsWeighted => false;
+
+    /// <summary>All 1 (an unweighted fit).</summary>
+    public ImmutableArray<double> Weights { get; }
+
+    /// <summary>The residuals (an unweighted fit).</summary>
+    public ImmutableArray<double> WeightedResiduals => Residuals;
+
+    /// <summary>The Jacobian d model_i / d b_j at the estimates, n x p row-major: the tangent-plane design.</summary>
+    public ImmutableArray<double> Jacobian { get; }
+
+    /// <summary>
+    /// The tangent-plane leverage of each point, the diagonal of J (J'J)^-1 J' with J the Jacobian at
+    /// the estimates (exact for a model linear in its parameters); NaN throughout when J is singular.
+    /// </summary>
+    public ImmutableArray<double> Leverage { get; }
+
+    /// <summary>True when the constant vector lies in the column space of the Jacobian (the model can shift the whole curve).</summary>
+    public bool HasIntercept { get; }
+
+    /// <summary>Correlation matrix of the estimates, p x p row-major (1 on the diagonal; NaN where the covariance is).</summary>
+    public ImmutableArray<double> Correlation { get; }
+
+    /// <summary>R^2 adjusted for the number of parameters, 1 - (1 - R^2)(n - 1)/df.</summary>
+    public double AdjustedRSquared { get; }
 
     /// <summary>Parameter names, in the order of every per-parameter array.</summary>
     public ImmutableArray<string> ParameterNames => Model.ParameterNames;
@@ -138,4 +195,22 @@ public sealed class NonlinearFitResult
 
     /// <summary>Index of a parameter by name, or -1.</summary>
     public int IndexOf(string parameter) => Model.IndexOf(parameter);
+
+    public double StandardError(int parameter) => StandardErrors[parameter];
+
+    /// <summary>Row <paramref name="point"/> of the Jacobian at the estimates.</summary>
+    public void FillDesignRow(int point, Span<double> row) => Jacobian.AsSpan(point * ParameterCount, ParameterCount).CopyTo(row);
+
+    /// <summary>The fitted curve at <paramref name="x"/> and its exact gradient with respect to the parameters.</summary>
+    public double ValueAt(ReadOnlySpan<double> x, Span<double> gradient) => Evaluate(Model, x, gradient);
+
+    /// <summary>The slope with respect to input <paramref name="input"/> at <paramref name="x"/>, from the symbolic derivative of the expression, and its exact gradient.</summary>
+    public double SlopeAt(ReadOnlySpan<double> x, int input, Span<double> gradient) => Evaluate(Model.InputDerivative(input), x, gradient);
+
+    private double Evaluate(ModelExpression expression, ReadOnlySpan<double> x, Span<double> gradient)
+    {
+        var length = expression.GradientScratchLength;
+        Span<double> scratch = length <= 1024 ? stackalloc double[length] : new double[length];
+        return expression.EvaluateWithGradient(Estimates.AsSpan(), x, gradient, scratch);
+    }
 }
