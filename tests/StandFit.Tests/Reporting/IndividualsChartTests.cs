@@ -10,11 +10,13 @@ namespace StandFit.Tests.Reporting;
 public sealed class IndividualsChartTests
 {
     /// <summary>
-    /// NIST/SEMATECH e-Handbook of Statistical Methods, section 6.3.2.2 "Individuals Control Charts",
-    /// example: flow rate of the first 10 batches of a new process. The table of data is an image in
-    /// the stored copy of the page; the values are the handbook's as remembered, and they check
-    /// themselves: the handbook's mean 50.81 and mean moving range 1.8778 follow from them exactly.
-    /// The handbook draws UCL 55.80 and LCL 45.82 (from 3 / 1.128) and calls the process in control.
+    /// NIST/SEMATECH e-Handbook of Statistical Methods, "Individuals Control Charts" (section 6.3.1.2,
+    /// page pmc312 in the stored copy), example: "A new process was studied in order to monitor
+    /// flowrate. The first 10 batches resulted in" a table, and "On both charts the process is in
+    /// control". The table and the parameters are images in the stored copy: the values below are
+    /// the handbook's as remembered (not confirmed against the image), and they check themselves: the
+    /// mean 50.81 and mean moving range 1.8778 remembered with them follow from them exactly. The
+    /// limits 55.80 and 45.82 (from 3 / 1.128) are remembered too, and are hand-computed below.
     /// </summary>
     private static readonly double[] Flowrate = [49.6, 47.6, 49.9, 51.3, 47.8, 51.2, 52.6, 52.4, 53.6, 52.1];
 
