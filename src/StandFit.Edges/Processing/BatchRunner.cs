@@ -268,7 +268,12 @@ public sealed class BatchRunner(
             }
 
             records.Add(record);
-            points.AddRange(PointRecordFactory.Create(unit.Evaluation, record.UnitKey));
+            if (unit.Points.Count > 0 && unit.Points[0].UnitKey != record.UnitKey)
+            {
+                throw new InvalidOperationException($"The points of {unit.File.Name} carry the unit key {unit.Points[0].UnitKey}, its summary row {record.UnitKey}.");
+            }
+
+            points.AddRange(unit.Points);
             entries.Add(published1);
             published.Add((unit, record, published1));
         }

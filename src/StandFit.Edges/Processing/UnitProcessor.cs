@@ -6,16 +6,22 @@ using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
 using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
+using StandFit.Edges.Outputs;
 using StandFit.Edges.Readers;
 using StandFit.Edges.RecipeFiles;
 
 namespace StandFit.Edges.Processing;
 
-/// <summary>One input read and judged: the file's bytes' hash and the evaluation.</summary>
-public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation);
+/// <summary>One input read and judged: the file's bytes' hash, the evaluation, and the per-point rows of a fitted unit.</summary>
+public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation)
+{
+    /// <summary>The unit's rows of the per-point table, keyed by its unit key (empty when it was not fitted).</summary>
+    public IReadOnlyList<PointRecord> Points { get; init; } = [];
+}
 
 /// <summary>
-/// Reads one sweep file, picks its recipe and evaluates it. Failure policy: bad input becomes a
+/// Reads one sweep file, picks its recipe, evaluates it and computes the per-point rows of a fitted
+/// unit (in the batch's parallel part, with the unit's other figures). Failure policy: bad input becomes a
 /// rejected evaluation with its reason; an exception inside the core (a bug) becomes a rejection
 /// with <c>internal.error</c> and the stack in the operations log, and processing goes on. I/O
 /// errors on the input itself propagate (the caller skips the file and retries it later).
@@ -34,7 +40,18 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
     public ProcessedUnit Process(InputFile input)
     {
         var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? recipes().FormatFor(metadata), input.Name);
-        return new ProcessedUnit(input, file, Evaluate(file));
+        var evaluation = Evaluate(file);
+        try
+        {
+            return new ProcessedUnit(input, file, evaluation) { Points = PointRecordFactory.Create(evaluation, UnitKeys.Of(file.Sha256, evaluation.Recipe?.ContentHash)) };
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            // A bug in the per-point figures: the unit is rejected as for any bug in the core, and the batch goes on.
+            Log.UnitInternalError(logger, e, file.Name);
+            var problem = new Problem(ReasonCodes.InternalError.Code, Messages.InternalError(e.GetType().Name), SourceLocation.WholeFile(file.Name));
+            return new ProcessedUnit(input, file, UnitEvaluation.Rejected(file.Name, problem));
+        }
     }
 
     public UnitEvaluation Evaluate(SweepFile file)

@@ -25,32 +25,51 @@ public static class ReportReader
     {
         var unreadable = ImmutableArray.CreateBuilder<string>();
         var rows = new List<ReportedUnit>();
-        foreach (var file in Partitioned(Path.Combine(outputFolder, "summaries"), from, to))
+        var fileOf = new Dictionary<string, string>(StringComparer.Ordinal);
+        var summaries = Path.Combine(outputFolder, "summaries");
+        foreach (var file in Partitioned(summaries, from, to))
         {
             var read = await TryReadAsync<SummaryRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false);
-            rows.AddRange(read.Select(ToUnit));
+            var relative = Path.GetRelativePath(summaries, file);
+            foreach (var row in read)
+            {
+                rows.Add(ToUnit(row));
+                fileOf[row.UnitKey] = relative;
+            }
         }
 
-        // The points of the units the report draws: the latest row of each serial, ruled fail or retest.
-        var drawn = MorningReport.Detailed(rows).Select(u => u.UnitKey).ToHashSet(StringComparer.Ordinal);
+        // The points of the units the report draws. A batch's points file has its summary file's
+        // name and partition, so only those files are read; a unit not found there (files merged or
+        // renamed by hand) but fitted (it has a residual SD) is looked for in the other point files of
+        // its partition.
+        var detailed = MorningReport.Detailed(rows);
+        var drawn = detailed.Select(u => u.UnitKey).ToHashSet(StringComparer.Ordinal);
         var points = new Dictionary<string, List<ReportedPoint>>(StringComparer.Ordinal);
-        if (drawn.Count > 0)
+        var pointsFolder = Path.Combine(outputFolder, "points");
+        var seen = new HashSet<string>(StringComparer.Ordinal);
+        foreach (var relative in drawn.Select(k => fileOf[k]).Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal))
         {
-            foreach (var file in Partitioned(Path.Combine(outputFolder, "points"), from, to))
+            var file = Path.Combine(pointsFolder, relative);
+            if (File.Exists(file) && seen.Add(file))
             {
-                foreach (var p in await TryReadAsync<PointRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
+                await ReadPointsAsync(file, outputFolder, drawn, points, unreadable, cancellationToken).ConfigureAwait(false);
+            }
+        }
+
+        var missing = detailed.Where(u => u.ResidualSd is not null && !points.ContainsKey(u.UnitKey)).Select(u => Path.GetDirectoryName(fileOf[u.UnitKey]) ?? "");
+        foreach (var partition in missing.Distinct(StringComparer.Ordinal).Order(StringComparer.Ordinal))
+        {
+            var folder = Path.Combine(pointsFolder, partition);
+            if (!Directory.Exists(folder))
+            {
+                continue;
+            }
+
+            foreach (var file in Directory.EnumerateFiles(folder, "*.parquet").Where(f => !Path.GetFileName(f).StartsWith('.')).Order(StringComparer.Ordinal))
+            {
+                if (seen.Add(file))
                 {
-                    if (!drawn.Contains(p.UnitKey))
-                    {
-                        continue;
-                    }
-
-                    if (!points.TryGetValue(p.UnitKey, out var list))
-                    {
-                        points[p.UnitKey] = list = [];
-                    }
-
-                    list.Add(new ReportedPoint(p.Point, p.SourceLine, p.Leg, p.Stimulus, p.FurtherInputs.Count > 0, p.Response, p.Fitted, p.Residual, p.BandLow, p.BandHigh, p.StudentizedResidual));
+                    await ReadPointsAsync(file, outputFolder, drawn, points, unreadable, cancellationToken).ConfigureAwait(false);
                 }
             }
         }
@@ -99,6 +118,24 @@ public static class ReportReader
             .OrderBy(d => d.Day)
             .SelectMany(d => Directory.EnumerateFiles(d.Folder, "*.parquet").Where(f => !Path.GetFileName(f).StartsWith('.')).Order(StringComparer.Ordinal))
             .ToList();
+    }
+
+    private static async Task ReadPointsAsync(string file, string outputFolder, HashSet<string> wanted, Dictionary<string, List<ReportedPoint>> points, ImmutableArray<string>.Builder unreadable, CancellationToken cancellationToken)
+    {
+        foreach (var p in await TryReadAsync<PointRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
+        {
+            if (!wanted.Contains(p.UnitKey))
+            {
+                continue;
+            }
+
+            if (!points.TryGetValue(p.UnitKey, out var list))
+            {
+                points[p.UnitKey] = list = [];
+            }
+
+            list.Add(new ReportedPoint(p.Point, p.SourceLine, p.Leg, p.Stimulus, p.FurtherInputs.Count > 0, p.Response, p.Fitted, p.Residual, p.BandLow, p.BandHigh, p.StudentizedResidual));
+        }
     }
 
     private static async Task<IList<T>> TryReadAsync<T>(string file, string outputFolder, ImmutableArray<string>.Builder unreadable, CancellationToken cancellationToken)

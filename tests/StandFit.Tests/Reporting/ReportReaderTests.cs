@@ -72,6 +72,30 @@ public sealed class ReportReaderTests
         Assert.Contains("cut.parquet", Core.Reporting.MorningReport.Render(data), StringComparison.Ordinal);
     }
 
+    [Fact]
+    public async Task The_points_of_drawn_units_are_read_from_their_summary_files_twin_and_found_elsewhere_in_the_partition_when_it_was_renamed()
+    {
+        using var root = new TempFolder();
+        var output = root.Sub("output");
+        await SyntheticOutput.WriteAsync(output, 300, seed: 7, batchSize: 100);
+        var first = await ReportReader.ReadAsync(output, null, null, At, "t");
+        var drawn = Core.Reporting.MorningReport.Detailed(first.Rows).Where(u => u.ResidualSd is not null).Select(u => u.UnitKey).Order(StringComparer.Ordinal).ToList();
+        Assert.NotEmpty(drawn);
+        Assert.Equal(drawn, first.Points.Keys.Order(StringComparer.Ordinal));
+        Assert.All(first.Points.Values, p => Assert.Equal(Enumerable.Range(1, 21), p.Select(x => x.Point)));
+
+        var folder = Directory.EnumerateDirectories(Path.Combine(output, "points")).Single();
+        foreach (var (file, i) in Directory.EnumerateFiles(folder).Order(StringComparer.Ordinal).Select((f, i) => (f, i)))
+        {
+            File.Move(file, Path.Combine(folder, "merged-" + i.ToString(System.Globalization.CultureInfo.InvariantCulture) + ".parquet"));
+        }
+
+        var second = await ReportReader.ReadAsync(output, null, null, At, "t");
+
+        Assert.Equal(drawn, second.Points.Keys.Order(StringComparer.Ordinal));
+        Assert.Empty(second.Unreadable);
+    }
+
     /// <summary>A summary row as a tool of an early schema might have written it: a few columns only.</summary>
     private sealed class OldRow
     {
