@@ -102,7 +102,7 @@ public sealed class CrashTests
         // The per-point rows were published with their summary rows: n_points rows for each fitted unit, none twice, none without its row.
         var pointsGlob = Duck.Literal(Path.Combine(root.Path, "output", "points", "**", "*.parquet"));
         var points = Duck.Query($"""
-            SELECT (SELECT sum(n_points) FROM read_parquet({glob}) WHERE df IS NOT NULL) AS expected,
+            SELECT (SELECT sum(n_points)::BIGINT FROM read_parquet({glob}) WHERE df IS NOT NULL) AS expected,
                    (SELECT count(*) FROM read_parquet({pointsGlob})) AS n,
                    (SELECT count(DISTINCT unit_key || ':' || point) FROM read_parquet({pointsGlob})) AS distinct_points,
                    (SELECT count(*) FROM read_parquet({pointsGlob}) p ANTI JOIN read_parquet({glob}) s USING (unit_key)) AS orphans
