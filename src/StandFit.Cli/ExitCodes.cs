@@ -6,7 +6,7 @@ public static class ExitCodes
     /// <summary>The command did its work (whatever the units' rulings).</summary>
     public const int Ok = 0;
 
-    /// <summary><c>recipes check</c> found problems; <c>inspect</c> could not read its file.</summary>
+    /// <summary><c>recipes check</c> found problems; <c>inspect</c> could not read its file; <c>report</c> found no output folder.</summary>
     public const int Invalid = 1;
 
     /// <summary>The command line is wrong.</summary>

@@ -15,9 +15,10 @@ public static class Help
           recipes check P  validate a recipe file or a folder of recipes
           recipes explain PART  print the effective recipe of a part, after inheritance
           recipes schema   print the JSON Schema of the recipe language
+          report           write the morning report (one HTML file) from an output folder's tables
 
         Run 'standfit <command> --help' for a command's options. 'standfit --version' prints the version.
-        Exit codes: 0 done, 1 invalid input (recipes check, inspect), 2 usage, 3 configuration,
+        Exit codes: 0 done, 1 invalid input (recipes check, inspect, report), 2 usage, 3 configuration,
         4 output fault, 5 fatal (pass/fail log not writable).
         """;
 
@@ -56,6 +57,20 @@ public static class Help
           --model MODEL   fit this model instead of the recipe's: straight-line,
                           straight-line-through-zero, or polynomial-K (K = 1..10)
           --json          print every field of the summary row as JSON
+        """;
+
+    public const string Report = """
+        Usage: standfit report --output OUTPUT_FOLDER [--from DATE] [--to DATE] [--out FILE]
+
+        Writes the morning report: one self-contained HTML file (inline SVG, no script, opens offline)
+        with the yield by part, station and hour, the Pareto of reason codes, individuals charts of
+        gain and offset per part with their flagged patterns, and each failed or retest unit with its
+        curve, residuals and reasons. Reads the summary, point and run tables of OUTPUT_FOLDER.
+
+          --output FOLDER  the output folder (the configuration's folders.output), holding summaries/
+          --from DATE      the first date of test start to include, YYYY-MM-DD (UTC; default: the first)
+          --to DATE        the last date to include, YYYY-MM-DD (default: the last)
+          --out FILE       where to write the report (default: OUTPUT_FOLDER/reports/report-....html)
         """;
 
     public const string RecipesExplain = """

@@ -86,11 +86,14 @@ internal static class RunCommand
         };
         Console.CancelKeyPress += onCancel;
         var clock = Stopwatch.StartNew();
+        using var runs = pipeline.NewRunRecorder("run");
+        var state = RunStates.Failed;
         try
         {
             pipeline.Runner.Start();
             var counts = await pipeline.Runner.ProcessAsync(inputs, stop.Token).ConfigureAwait(false);
             Log.RunFinished(logger, counts.Processed, clock.Elapsed.TotalSeconds);
+            state = RunStates.Finished;
             printer.PrintTotals(counts, clock.Elapsed, options.Output);
             return ExitCodes.Ok;
         }
@@ -115,6 +118,9 @@ internal static class RunCommand
         finally
         {
             Console.CancelKeyPress -= onCancel;
+
+            // The run's row in the runs table, whatever the outcome (a fault is recorded as failed).
+            await runs.TryWriteAsync(pipeline.Runner.Published(), DateTime.UtcNow, state, logger).ConfigureAwait(false);
         }
     }
 }

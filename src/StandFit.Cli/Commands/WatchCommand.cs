@@ -71,7 +71,8 @@ internal static class WatchCommand
             StatusFile = options.StatusFile,
         };
         Edges.Logging.Log.WorkerIdentity(workerLogger, options.WorkerId, pipeline.Claims!.Folder, options.StableSeconds, options.StatusFile);
-        var loop = new InboxLoop(options.Inbox, pipeline.Runner, pipeline.Recipes, settings, TimeProvider.System, workerLogger);
+        using var runs = pipeline.NewRunRecorder("watch");
+        var loop = new InboxLoop(options.Inbox, pipeline.Runner, pipeline.Recipes, settings, TimeProvider.System, workerLogger, runs);
 
         var builder = Host.CreateApplicationBuilder(new HostApplicationBuilderSettings { Args = [], ContentRootPath = AppContext.BaseDirectory });
         builder.Logging.ClearProviders();

@@ -368,4 +368,11 @@ public static class Messages
             : F($"the largest studentized residual |t| = {Numbers.Format(r, 4)} (point {point}, line {line}) on {df} df, Bonferroni {Floor(p, floor, below)}");
 
     public static string DiagnosticNotApplicable(string test) => F($"the {test} cannot be made on this fit (too few points or set points, no replicates, or no scatter left); the gate does not judge");
+
+    // ---- the morning report ------------------------------------------------------------------
+    public static string ReportFileUnreadable(string file, string why) => F($"{file} cannot be read ({why}); its rows are left out of this report. Check the file (a copy cut short, or written by another tool) and restore it from a backup if it was damaged.");
+    public static string ReportBadDate(string option, string shown) => F($"{option} '{shown}' is not a date; write it as YYYY-MM-DD (a UTC date of test start, as the date= folders name them).");
+    public static string ReportDatesReversed(string from, string to) => F($"--from {from} is after --to {to}; give the earlier date first.");
+    public static string ReportNoOutputFolder(string folder) => F($"the output folder '{folder}' does not exist; give the folder that holds summaries/ (the configuration's folders.output).");
+    public static string ReportNoSummaries(string folder) => F($"'{folder}' holds no summaries/ folder, so it is not a StandFit output folder (or nothing was published yet); give the folder that holds summaries/.");
 }

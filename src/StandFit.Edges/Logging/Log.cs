@@ -51,6 +51,9 @@ public static partial class Log
     [LoggerMessage(EventId = 2007, Level = LogLevel.Error, Message = "Summary file {File} of committed batch {Batch} is missing (neither its temporary nor its final name exists); its rows are lost. Restore the file from a backup")]
     public static partial void CommittedFileMissing(ILogger logger, string file, string batch);
 
+    [LoggerMessage(EventId = 2009, Level = LogLevel.Warning, Message = "The runs table row {File} cannot be written: {Why}; summaries, points and the pass/fail log are not affected")]
+    public static partial void RunRecordUnwritable(ILogger logger, string file, string why);
+
     [LoggerMessage(EventId = 3001, Level = LogLevel.Information, Message = "Recipes loaded: {Count} in force from {Folder}")]
     public static partial void RecipesLoaded(ILogger logger, int count, string folder);
 

@@ -7,11 +7,14 @@ namespace StandFit.Edges.Outputs;
 /// <summary>
 /// Writes summary rows to <c>output/summaries/date=YYYY-MM-DD/</c>, one Parquet file per batch and
 /// partition (the date is the unit's test start, or its processing time when the file gives none),
-/// Zstd-compressed. Publishing is two-phase so that a journal entry can sit between the phases:
-/// <see cref="PrepareAsync"/> writes each file under a hidden temporary name in its destination
+/// Zstd-compressed, and the per-point rows of the same units to <c>output/points/date=YYYY-MM-DD/</c>
+/// under the same file name (a unit's points go to its summary row's partition). Publishing is
+/// two-phase so that a journal entry can sit between the phases: <see cref="PrepareAsync(IReadOnlyList{SummaryRecord}, IReadOnlyList{PointRecord}, CancellationToken)"/>
+/// writes each file (summaries and points alike) under a hidden temporary name in its destination
 /// folder and flushes it to disk; <see cref="PreparedSummaries.Complete"/> renames them to their
-/// final names (atomic within one volume). A reader globbing <c>*.parquet</c> never sees a
-/// half-written file, and a file is never overwritten.
+/// final names (atomic within one volume). The journal names both kinds of file, so recovery
+/// renames both: a unit's points are published exactly when its summary row is. A reader globbing
+/// <c>*.parquet</c> never sees a half-written file, and a file is never overwritten.
 /// </summary>
 public sealed class ParquetSummaryWriter : ISummarySink
 {
@@ -23,6 +26,7 @@ public sealed class ParquetSummaryWriter : ISummarySink
 
     private readonly string _output;
     private readonly string _root;
+    private readonly string _pointsRoot;
     private readonly string _filePrefix;
     private readonly string _temporaryPrefix;
     private int _sequence;
@@ -34,6 +38,7 @@ public sealed class ParquetSummaryWriter : ISummarySink
     {
         _output = outputFolder;
         _root = Path.Combine(outputFolder, "summaries");
+        _pointsRoot = Path.Combine(outputFolder, "points");
         _filePrefix = filePrefix;
         _temporaryPrefix = "." + workerId + "~";
     }
@@ -50,11 +55,37 @@ public sealed class ParquetSummaryWriter : ISummarySink
     /// <summary>The absolute path of a path relative to the output folder.</summary>
     public string Absolute(string relative) => Path.GetFullPath(Path.Combine(_output, relative));
 
-    public async Task<PreparedSummaries> PrepareAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken)
+    public Task<PreparedSummaries> PrepareAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken) =>
+        PrepareAsync(records, [], cancellationToken);
+
+    /// <summary>Writes the batch's summary rows and the per-point rows of its fitted units, each file flushed under its temporary name.</summary>
+    public async Task<PreparedSummaries> PrepareAsync(IReadOnlyList<SummaryRecord> records, IReadOnlyList<PointRecord> points, CancellationToken cancellationToken)
     {
         if (!Directory.Exists(_output))
         {
             throw new DirectoryNotFoundException($"The output folder {_output} does not exist (removed, or a share not mounted); inputs are held until it is back.");
+        }
+
+        var partitionOfKey = new Dictionary<string, string>(StringComparer.Ordinal);
+        foreach (var record in records)
+        {
+            partitionOfKey[record.UnitKey] = PartitionOf(record);
+        }
+
+        var pointsByPartition = new Dictionary<string, List<PointRecord>>(StringComparer.Ordinal);
+        foreach (var point in points)
+        {
+            if (!partitionOfKey.TryGetValue(point.UnitKey, out var partition))
+            {
+                throw new ArgumentException($"Point rows of unit {point.UnitKey} come without its summary row.", nameof(points));
+            }
+
+            if (!pointsByPartition.TryGetValue(partition, out var list))
+            {
+                pointsByPartition[partition] = list = [];
+            }
+
+            list.Add(point);
         }
 
         var prepared = new PreparedSummaries(this);
@@ -64,16 +95,11 @@ public sealed class ParquetSummaryWriter : ISummarySink
             {
                 var sequence = Interlocked.Increment(ref _sequence);
                 var name = string.Create(CultureInfo.InvariantCulture, $"{_filePrefix}-{sequence:D5}.parquet");
-                var folder = Path.Combine(_root, group.Key);
-                Directory.CreateDirectory(folder);
-                var final = Path.Combine(folder, name);
-                var temporary = TemporaryOf(final);
-                prepared.Add(temporary, final);
-                var rows = group.ToList();
-                await using var stream = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write, FileShare.None, 64 * 1024, FileOptions.Asynchronous);
-                await ParquetSerializer.SerializeAsync(rows, stream, Options, cancellationToken: cancellationToken).ConfigureAwait(false);
-                await stream.FlushAsync(cancellationToken).ConfigureAwait(false);
-                stream.Flush(flushToDisk: true);
+                await WriteFileAsync(prepared, Path.Combine(_root, group.Key, name), group.ToList(), cancellationToken).ConfigureAwait(false);
+                if (pointsByPartition.TryGetValue(group.Key, out var rows))
+                {
+                    await WriteFileAsync(prepared, Path.Combine(_pointsRoot, group.Key, name), rows, cancellationToken).ConfigureAwait(false);
+                }
             }
         }
         catch
@@ -85,10 +111,24 @@ public sealed class ParquetSummaryWriter : ISummarySink
         return prepared;
     }
 
-    public async Task WriteAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken)
+    public async Task WriteAsync(IReadOnlyList<SummaryRecord> records, CancellationToken cancellationToken) =>
+        await WriteAsync(records, [], cancellationToken).ConfigureAwait(false);
+
+    public async Task WriteAsync(IReadOnlyList<SummaryRecord> records, IReadOnlyList<PointRecord> points, CancellationToken cancellationToken)
     {
-        var prepared = await PrepareAsync(records, cancellationToken).ConfigureAwait(false);
+        var prepared = await PrepareAsync(records, points, cancellationToken).ConfigureAwait(false);
         prepared.Complete();
+    }
+
+    private async Task WriteFileAsync<T>(PreparedSummaries prepared, string final, IReadOnlyCollection<T> rows, CancellationToken cancellationToken)
+    {
+        Directory.CreateDirectory(Path.GetDirectoryName(final)!);
+        var temporary = TemporaryOf(final);
+        prepared.Add(temporary, final);
+        await using var stream = new FileStream(temporary, FileMode.CreateNew, FileAccess.Write, FileShare.None, 64 * 1024, FileOptions.Asynchronous);
+        await ParquetSerializer.SerializeAsync(rows, stream, Options, cancellationToken: cancellationToken).ConfigureAwait(false);
+        await stream.FlushAsync(cancellationToken).ConfigureAwait(false);
+        stream.Flush(flushToDisk: true);
     }
 
     /// <summary>
@@ -113,23 +153,26 @@ public sealed class ParquetSummaryWriter : ISummarySink
         return true;
     }
 
-    /// <summary>Deletes this worker's temporary files that no journal entry needs (a crash before the entry was written).</summary>
+    /// <summary>Deletes this worker's temporary files (summaries and points) that no journal entry needs (a crash before the entry was written).</summary>
     public int DeleteOrphans(IReadOnlySet<string> keepRelativeFinals)
     {
-        if (!Directory.Exists(_root))
-        {
-            return 0;
-        }
-
         var deleted = 0;
-        foreach (var temporary in Directory.EnumerateFiles(_root, _temporaryPrefix + "*.tmp", SearchOption.AllDirectories))
+        foreach (var root in new[] { _root, _pointsRoot })
         {
-            var name = Path.GetFileName(temporary);
-            var final = Path.Combine(Path.GetDirectoryName(temporary)!, name[_temporaryPrefix.Length..^".tmp".Length]);
-            if (!keepRelativeFinals.Contains(Relative(final)))
+            if (!Directory.Exists(root))
             {
-                File.Delete(temporary);
-                deleted++;
+                continue;
+            }
+
+            foreach (var temporary in Directory.EnumerateFiles(root, _temporaryPrefix + "*.tmp", SearchOption.AllDirectories))
+            {
+                var name = Path.GetFileName(temporary);
+                var final = Path.Combine(Path.GetDirectoryName(temporary)!, name[_temporaryPrefix.Length..^".tmp".Length]);
+                if (!keepRelativeFinals.Contains(Relative(final)))
+                {
+                    File.Delete(temporary);
+                    deleted++;
+                }
             }
         }
 
@@ -137,7 +180,7 @@ public sealed class ParquetSummaryWriter : ISummarySink
     }
 }
 
-/// <summary>Summary files written and flushed under temporary names, waiting to be renamed.</summary>
+/// <summary>Summary and point files written and flushed under temporary names, waiting to be renamed.</summary>
 public sealed class PreparedSummaries
 {
     private readonly ParquetSummaryWriter _writer;

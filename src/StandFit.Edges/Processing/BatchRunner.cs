@@ -13,8 +13,8 @@ namespace StandFit.Edges.Processing;
 /// Processes inputs in batches, exactly once. For each batch: take the inputs (claim them out of the
 /// inbox, or read them in place); judge every unit (in parallel; the core is pure); sort out
 /// duplicates (a unit key already published: not judged again, no row) and link retests (the
-/// latest earlier key of the same part and serial); write the batch's Parquet files under temporary
-/// names (flushed); commit the batch to the journal (flushed); rename the Parquet files; append the
+/// latest earlier key of the same part and serial); write the batch's Parquet files (summary rows,
+/// and the per-point rows of its fitted units) under temporary names (flushed); commit the batch to the journal (flushed); rename the Parquet files; append the
 /// pass/fail lines (flushed) and mark them logged in the journal; only then move each input on.
 /// At the start of every pass, work the journal holds as committed but unfinished (after a crash,
 /// a stop or an output fault) is finished first, from the journal alone: files renamed, lines
@@ -44,6 +44,9 @@ public sealed class BatchRunner(
 
     // Claimed inputs held for want of a recipe: claim path -> (part, the recipes they were last read under).
     private readonly Dictionary<string, (string Part, RecipeCatalog Under)> _held = new(StringComparer.Ordinal);
+
+    private readonly Lock _publishedGate = new();
+    private readonly BatchCounts _published = new();
     private PublishJournal? _journal;
     private int _batchSequence;
 
@@ -78,6 +81,25 @@ public sealed class BatchRunner(
     public IInputIntake Intake => intake;
 
     public string WorkerId => workerId;
+
+    /// <summary>The run id that names this runner's Parquet files and journal batches.</summary>
+    public string RunId => runId;
+
+    /// <summary>
+    /// A copy of what this runner published itself since it was made: rows by ruling, and
+    /// duplicates. Work of an earlier process finished from the journal is not counted (its rows
+    /// belong to that process's run). Safe to call from another thread.
+    /// </summary>
+    public BatchCounts Published()
+    {
+        var copy = new BatchCounts();
+        lock (_publishedGate)
+        {
+            copy.Add(_published);
+        }
+
+        return copy;
+    }
 
     public PublishJournal Journal => _journal ?? throw new InvalidOperationException("Start the runner first.");
 
@@ -311,6 +333,7 @@ public sealed class BatchRunner(
         processedAt = new DateTime(processedAt.Ticks - (processedAt.Ticks % TimeSpan.TicksPerMillisecond), DateTimeKind.Utc);
         var journal = Journal;
         var records = new List<SummaryRecord>(units.Count);
+        var points = new List<PointRecord>();
         var entries = new List<JournalUnit>(units.Count);
         var published = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry)>(units.Count);
         var duplicates = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry, string FirstAt, string FirstRuling)>();
@@ -352,12 +375,18 @@ public sealed class BatchRunner(
             }
 
             records.Add(record);
+            if (unit.Points.Count > 0 && unit.Points[0].UnitKey != record.UnitKey)
+            {
+                throw new InvalidOperationException($"The points of {unit.File.Name} carry the unit key {unit.Points[0].UnitKey}, its summary row {record.UnitKey}.");
+            }
+
+            points.AddRange(unit.Points);
             entries.Add(published1);
             published.Add((unit, record, published1));
         }
 
-        // Phase 1: the rows on disk under temporary names. Phase 2: the commit line. Then the renames.
-        var prepared = records.Count > 0 ? await summaries.PrepareAsync(records, CancellationToken.None).ConfigureAwait(false) : null;
+        // Phase 1: the rows (summaries and points) on disk under temporary names. Phase 2: the commit line. Then the renames.
+        var prepared = records.Count > 0 ? await summaries.PrepareAsync(records, points, CancellationToken.None).ConfigureAwait(false) : null;
         var committed = new JournalBatch
         {
             Id = string.Create(CultureInfo.InvariantCulture, $"{runId}-b{Interlocked.Increment(ref _batchSequence):D6}"),
@@ -415,6 +444,11 @@ public sealed class BatchRunner(
             Dispose(unit.Input, entry, processedAt);
             counts.AddDuplicate();
             OnDuplicate?.Invoke(record);
+        }
+
+        lock (_publishedGate)
+        {
+            _published.Add(counts);
         }
 
         Log.BatchPublished(logger, counts.Processed, counts.Passed, counts.Failed, counts.Retest, counts.Rejected);

@@ -17,10 +17,13 @@ namespace StandFit.Edges.Processing;
 public sealed class Pipeline : IDisposable
 {
     private readonly WorkerLock _lock;
+    private readonly StandFitOptions _options;
 
-    private Pipeline(WorkerLock workerLock, RecipeSource recipes, UnitProcessor processor, BatchRunner runner, ClaimFolder? claims)
+    private Pipeline(WorkerLock workerLock, StandFitOptions options, DateTime startedAt, RecipeSource recipes, UnitProcessor processor, BatchRunner runner, ClaimFolder? claims)
     {
         _lock = workerLock;
+        _options = options;
+        StartedAt = startedAt;
         Recipes = recipes;
         Processor = processor;
         Runner = runner;
@@ -39,6 +42,13 @@ public sealed class Pipeline : IDisposable
 
     /// <summary>The claim folder (inbox mode), or null (read in place).</summary>
     public ClaimFolder? Claims { get; }
+
+    /// <summary>When the pipeline was built (UTC): the start of the run, as its run id says.</summary>
+    public DateTime StartedAt { get; }
+
+    /// <summary>The writer of this process's row in the runs table; <paramref name="command"/> is <c>run</c> or <c>watch</c>.</summary>
+    public RunRecorder NewRunRecorder(string command) =>
+        new(_options.Output, Runner.RunId, command, _options.WorkerId, StartedAt, ToolInfo.Version, _options.ConfigHash);
 
     /// <summary>Builds the pipeline. <paramref name="holdUncoveredParts"/>: <c>watch</c> holds a unit whose part no recipe lists until one does (see <see cref="BatchRunner.HoldUncoveredParts"/>); <c>run</c> rejects it.</summary>
     public static Pipeline Build(
@@ -63,7 +73,8 @@ public sealed class Pipeline : IDisposable
             Log.RecipesLoaded(logger, catalog.Recipes.Length, options.Recipes);
             var recipes = new RecipeSource(options.Recipes, catalog, logger);
             var processor = new UnitProcessor(new SweepFileReader(options.MaxFileBytes), () => recipes.Current, logger);
-            var runId = ToolInfo.NewRunId(clock.GetUtcNow(), options.WorkerId);
+            var startedAt = clock.GetUtcNow();
+            var runId = ToolInfo.NewRunId(startedAt, options.WorkerId);
             var claims = mode == DispositionMode.Move ? new ClaimFolder(options.Inbox, options.WorkerId) : null;
             var runner = new BatchRunner(
                 processor,
@@ -84,7 +95,7 @@ public sealed class Pipeline : IDisposable
                 HoldUncoveredParts = holdUncoveredParts && claims is not null,
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
             };
-            return new Pipeline(workerLock, recipes, processor, runner, claims);
+            return new Pipeline(workerLock, options, startedAt.UtcDateTime, recipes, processor, runner, claims);
         }
         catch
         {

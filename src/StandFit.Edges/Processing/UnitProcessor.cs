@@ -6,14 +6,18 @@ using StandFit.Core.Problems;
 using StandFit.Core.Recipes;
 using StandFit.Edges.Folders;
 using StandFit.Edges.Logging;
+using StandFit.Edges.Outputs;
 using StandFit.Edges.Readers;
 using StandFit.Edges.RecipeFiles;
 
 namespace StandFit.Edges.Processing;
 
-/// <summary>One input read and judged: the file's bytes' hash and the evaluation.</summary>
+/// <summary>One input read and judged: the file's bytes' hash, the evaluation, and the per-point rows of a fitted unit.</summary>
 public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluation Evaluation)
 {
+    /// <summary>The unit's rows of the per-point table, keyed by its unit key (empty when it was not fitted).</summary>
+    public IReadOnlyList<PointRecord> Points { get; init; } = [];
+
     /// <summary>The part the file names when no recipe in force lists it (<c>watch</c> holds such a unit); null otherwise.</summary>
     public string? UncoveredPart { get; init; }
 
@@ -22,7 +26,8 @@ public sealed record ProcessedUnit(InputFile Input, SweepFile File, UnitEvaluati
 }
 
 /// <summary>
-/// Reads one sweep file, picks its recipe and evaluates it. Failure policy: bad input becomes a
+/// Reads one sweep file, picks its recipe, evaluates it and computes the per-point rows of a fitted
+/// unit (in the batch's parallel part, with the unit's other figures). Failure policy: bad input becomes a
 /// rejected evaluation with its reason; an exception inside the core (a bug) becomes a rejection
 /// with <c>internal.error</c> and the stack in the operations log, and processing goes on. I/O
 /// errors on the input itself propagate (the caller skips the file and retries it later).
@@ -42,11 +47,24 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
     {
         var catalog = recipes();
         var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? catalog.FormatFor(metadata), input.Name);
-        return new ProcessedUnit(input, file, Evaluate(file, catalog))
+        var evaluation = Evaluate(file, catalog);
+        var uncovered = RecipeOverride is null ? catalog.UncoveredPart(file.Metadata) : null;
+        try
         {
-            UncoveredPart = RecipeOverride is null ? catalog.UncoveredPart(file.Metadata) : null,
-            Catalog = catalog,
-        };
+            return new ProcessedUnit(input, file, evaluation)
+            {
+                Points = PointRecordFactory.Create(evaluation, UnitKeys.Of(file.Sha256, evaluation.Recipe?.ContentHash)),
+                UncoveredPart = uncovered,
+                Catalog = catalog,
+            };
+        }
+        catch (Exception e) when (e is not OutOfMemoryException)
+        {
+            // A bug in the per-point figures: the unit is rejected as for any bug in the core, and the batch goes on.
+            Log.UnitInternalError(logger, e, file.Name);
+            var problem = new Problem(ReasonCodes.InternalError.Code, Messages.InternalError(e.GetType().Name), SourceLocation.WholeFile(file.Name));
+            return new ProcessedUnit(input, file, UnitEvaluation.Rejected(file.Name, problem)) { UncoveredPart = uncovered, Catalog = catalog };
+        }
     }
 
     /// <summary>The recipes in force now.</summary>

@@ -29,6 +29,9 @@ public sealed record LoopSettings
 
     /// <summary>Where the status file goes; none when null.</summary>
     public string? StatusFile { get; init; }
+
+    /// <summary>Rewrite the run's row in the runs table this often while the counts change (and always at shutdown).</summary>
+    public TimeSpan RunRecordInterval { get; init; } = TimeSpan.FromMinutes(1);
 }
 
 /// <summary>
@@ -41,6 +44,10 @@ public sealed record LoopSettings
 /// damaged journal or an unexpected exception ends the loop (the host then exits with code 5).
 /// A unit whose part no recipe lists is held by the runner (<see cref="BatchRunner.HoldUncoveredParts"/>)
 /// and judged on the first pass after a reload brings a recipe that lists it.
+/// With a <see cref="RunRecorder"/>, the worker's row in the runs table is rewritten every
+/// <see cref="LoopSettings.RunRecordInterval"/> while its counts change (state <c>running</c>) and
+/// once more at shutdown (<c>finished</c>, or <c>failed</c> after a fatal error); a runs row that
+/// cannot be written is logged and never stops the work.
 /// </summary>
 public sealed class InboxLoop
 {
@@ -53,11 +60,13 @@ public sealed class InboxLoop
     private readonly InboxScanner _scanner;
     private readonly FaultReporter _outputFault;
     private readonly FaultReporter _inboxFault;
+    private readonly RunRecorder? _runs;
     private TaskCompletionSource _wake = NewSignal();
     private bool _statusFaultLogged;
 
-    public InboxLoop(string inbox, BatchRunner runner, RecipeSource? recipes, LoopSettings settings, TimeProvider clock, ILogger logger)
+    public InboxLoop(string inbox, BatchRunner runner, RecipeSource? recipes, LoopSettings settings, TimeProvider clock, ILogger logger, RunRecorder? runs = null)
     {
+        _runs = runs;
         _inbox = inbox;
         _runner = runner;
         _recipes = recipes;
@@ -79,6 +88,9 @@ public sealed class InboxLoop
     /// <summary>Raised after each write of the status file.</summary>
     public event Action? StatusWritten;
 
+    /// <summary>Raised after each write of the run's row in the runs table, with the row written.</summary>
+    public event Action<RunRecord>? RunRecorded;
+
     public BatchCounts Totals { get; } = new();
 
     public WorkerStatus Status { get; }
@@ -96,6 +108,7 @@ public sealed class InboxLoop
         using var statusStop = CancellationTokenSource.CreateLinkedTokenSource(stop);
         Status.SetState("running");
         var statusTask = _settings.StatusFile is null ? Task.CompletedTask : WriteStatusPeriodicallyAsync(statusStop.Token);
+        var runsTask = _runs is null ? Task.CompletedTask : RecordRunPeriodicallyAsync(_runs, statusStop.Token);
         var backoff = TimeSpan.Zero;
         try
         {
@@ -120,7 +133,12 @@ public sealed class InboxLoop
             Status.SetState(stop.IsCancellationRequested ? "stopped" : "failed");
             await statusStop.CancelAsync().ConfigureAwait(false);
             await statusTask.ConfigureAwait(false);
+            await runsTask.ConfigureAwait(false);
             WriteStatus();
+            if (_runs is not null)
+            {
+                await RecordRunAsync(_runs, stop.IsCancellationRequested ? RunStates.Finished : RunStates.Failed).ConfigureAwait(false);
+            }
         }
 
         Log.WorkerStopping(_logger);
@@ -194,6 +212,39 @@ public sealed class InboxLoop
         {
             // Stopping: the final status is written by the loop.
         }
+    }
+
+    private async Task RecordRunPeriodicallyAsync(RunRecorder runs, CancellationToken stop)
+    {
+        using var timer = new PeriodicTimer(_settings.RunRecordInterval, _clock);
+        var written = -1L;
+        try
+        {
+            while (await timer.WaitForNextTickAsync(stop).ConfigureAwait(false))
+            {
+                var counts = _runner.Published();
+                var total = counts.Processed + counts.Duplicates;
+                if (total != written && await RecordRunAsync(runs, RunStates.Running).ConfigureAwait(false))
+                {
+                    written = total;
+                }
+            }
+        }
+        catch (OperationCanceledException)
+        {
+            // Stopping: the final row is written by the loop.
+        }
+    }
+
+    private async Task<bool> RecordRunAsync(RunRecorder runs, string state)
+    {
+        var written = await runs.TryWriteAsync(_runner.Published(), _clock.GetUtcNow().UtcDateTime, state, _logger).ConfigureAwait(false);
+        if (written is not null)
+        {
+            RunRecorded?.Invoke(written);
+        }
+
+        return written is not null;
     }
 
     private void WriteStatus()

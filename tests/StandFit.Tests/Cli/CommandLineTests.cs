@@ -100,6 +100,7 @@ public sealed class CommandLineTests
     [InlineData("watch")]
     [InlineData("inspect")]
     [InlineData("recipes check")]
+    [InlineData("report")]
     public async Task Every_command_has_help(string command)
     {
         var outcome = await StandFitProcess.RunAsync(RepoPaths.Root, Timeout, [.. command.Split(' '), "--help"]);

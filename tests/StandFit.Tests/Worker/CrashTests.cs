@@ -99,6 +99,21 @@ public sealed class CrashTests
         var shas = Duck.Query($"SELECT source_sha256 FROM read_parquet({glob})").Select(r => (string)r["source_sha256"]!).ToHashSet(StringComparer.Ordinal);
         Assert.True(shas.SetEquals(inputs.Values), "the rows' contents are not the inputs' contents");
 
+        // The per-point rows were published with their summary rows: n_points rows for each fitted unit, none twice, none without its row.
+        var pointsGlob = Duck.Literal(Path.Combine(root.Path, "output", "points", "**", "*.parquet"));
+        var points = Duck.Query($"""
+            SELECT (SELECT sum(n_points)::BIGINT FROM read_parquet({glob}) WHERE df IS NOT NULL) AS expected,
+                   (SELECT count(*) FROM read_parquet({pointsGlob})) AS n,
+                   (SELECT count(DISTINCT unit_key || ':' || point) FROM read_parquet({pointsGlob})) AS distinct_points,
+                   (SELECT count(*) FROM read_parquet({pointsGlob}) p ANTI JOIN read_parquet({glob}) s USING (unit_key)) AS orphans
+            """)[0];
+        Assert.True(Convert.ToInt64(points["expected"], CultureInfo.InvariantCulture) > 0);
+        Assert.Equal(Convert.ToInt64(points["expected"], CultureInfo.InvariantCulture), Convert.ToInt64(points["n"], CultureInfo.InvariantCulture));
+        Assert.Equal(Convert.ToInt64(points["n"], CultureInfo.InvariantCulture), Convert.ToInt64(points["distinct_points"], CultureInfo.InvariantCulture));
+        Assert.Equal(0L, Convert.ToInt64(points["orphans"], CultureInfo.InvariantCulture));
+        Assert.Empty(Directory.EnumerateFiles(Path.Combine(root.Path, "output", "summaries"), "*.tmp", SearchOption.AllDirectories));
+        Assert.Empty(Directory.EnumerateFiles(Path.Combine(root.Path, "output", "points"), "*.tmp", SearchOption.AllDirectories));
+
         // The duplicates are recorded as such, once each, and not counted.
         var duplicateNotes = Directory.EnumerateFiles(Path.Combine(root.Path, "rejected"), "*.rejected.txt", SearchOption.AllDirectories)
             .Count(f => File.ReadAllText(f).Contains("code: input.duplicate\n", StringComparison.Ordinal));
