@@ -80,6 +80,7 @@ public sealed class Pipeline : IDisposable
                 OnPublished = onPublished,
                 OnDuplicate = onDuplicate,
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
+                JournalCompactUnits = options.JournalCompactUnits,
             };
             return new Pipeline(workerLock, recipes, processor, runner, claims);
         }
@@ -90,5 +91,9 @@ public sealed class Pipeline : IDisposable
         }
     }
 
-    public void Dispose() => _lock.Dispose();
+    public void Dispose()
+    {
+        Runner.Dispose();
+        _lock.Dispose();
+    }
 }

@@ -1,0 +1,118 @@
+using StandFit.Core.Problems;
+
+namespace StandFit.Edges.Outputs;
+
+/// <summary>
+/// One worker's key index as this process sees it: the index files its journal's header names
+/// (oldest first) and the recent keys of the batches after the header. Invariant: every key the
+/// worker published is in exactly one of them, and the newer holder wins for a part and serial:
+/// the recent keys, then the index files newest first. Memory: the recent keys (bounded by the
+/// compaction threshold) and one open handle per index file; the files are searched on disk.
+/// </summary>
+internal sealed class KeyIndex : IDisposable
+{
+    private List<IndexSegment> _segments;
+
+    private KeyIndex(int generation, List<IndexSegment> segments)
+    {
+        Generation = generation;
+        _segments = segments;
+    }
+
+    /// <summary>The generation of the journal's header (0: no header, nothing folded yet).</summary>
+    public int Generation { get; private set; }
+
+    public IReadOnlyList<IndexSegment> Segments => _segments;
+
+    public RecentKeys Recent { get; } = new();
+
+    public long KeyCount => Recent.Count + _segments.Sum(s => s.Keys.Count);
+
+    public long FileBytes => _segments.Sum(s => s.Bytes);
+
+    public static KeyIndex Empty() => new(0, []);
+
+    /// <summary>
+    /// Opens the index files a header names, each checked whole. Throws <see cref="InvalidDataException"/>
+    /// when a name is not one of <paramref name="workerId"/>'s index files or a file is damaged, and
+    /// <see cref="FileNotFoundException"/> when one is missing.
+    /// </summary>
+    public static KeyIndex Open(string folder, string workerId, int generation, IReadOnlyList<string> names)
+    {
+        var segments = new List<IndexSegment>(names.Count);
+        try
+        {
+            foreach (var name in names)
+            {
+                if (!IndexFiles.IsSegmentOf(name, workerId))
+                {
+                    throw new InvalidDataException(Messages.IndexFileForeignName(name, workerId));
+                }
+
+                segments.Add(IndexSegment.Open(Path.Combine(folder, name)));
+            }
+        }
+        catch
+        {
+            segments.ForEach(s => s.Dispose());
+            throw;
+        }
+
+        return new KeyIndex(generation, segments);
+    }
+
+    public bool TryFirst(UnitKeyBits key, out KeyRecord record)
+    {
+        if (Recent.TryFind(key, out record))
+        {
+            return true;
+        }
+
+        for (var i = _segments.Count - 1; i >= 0; i--)
+        {
+            if (_segments[i].TryFind(key, out record))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    public bool TryLatest(UInt128 serial, out SerialRecord record)
+    {
+        if (Recent.TryFind(serial, out record))
+        {
+            return true;
+        }
+
+        for (var i = _segments.Count - 1; i >= 0; i--)
+        {
+            if (_segments[i].TryFind(serial, out record))
+            {
+                return true;
+            }
+        }
+
+        return false;
+    }
+
+    /// <summary>After a compaction: the new generation and files; the recent keys are in them now. Files no longer named are closed.</summary>
+    public void Advance(int generation, List<IndexSegment> segments)
+    {
+        foreach (var old in _segments.Where(s => !segments.Contains(s)))
+        {
+            old.Dispose();
+        }
+
+        Generation = generation;
+        _segments = segments;
+        Recent.Clear();
+    }
+
+    public void Dispose()
+    {
+        _segments.ForEach(s => s.Dispose());
+        _segments = [];
+    }
+}
