@@ -37,7 +37,21 @@ internal sealed class KeyIndex : IDisposable
     /// when a name is not one of <paramref name="workerId"/>'s index files or a file is damaged, and
     /// <see cref="FileNotFoundException"/> when one is missing.
     /// </summary>
-    public static KeyIndex Open(string folder, string workerId, int generation, IReadOnlyList<string> names)
+    public static KeyIndex Open(string folder, string workerId, int generation, IReadOnlyList<string> names) =>
+        new(generation, OpenAll(folder, workerId, names, []));
+
+    /// <summary>
+    /// Follows a later header of the same worker (another worker's journal, compacted since): opens
+    /// the files it names that are not open yet (files are immutable, so one already open under
+    /// its name is kept), closes the others, and forgets the recent keys (they are read again from
+    /// the new journal). Throws as <see cref="Open"/>, leaving this index as it was.
+    /// </summary>
+    public void Follow(string folder, string workerId, int generation, IReadOnlyList<string> names)
+    {
+        Advance(generation, OpenAll(folder, workerId, names, _segments));
+    }
+
+    private static List<IndexSegment> OpenAll(string folder, string workerId, IReadOnlyList<string> names, List<IndexSegment> open)
     {
         var segments = new List<IndexSegment>(names.Count);
         try
@@ -49,16 +63,16 @@ internal sealed class KeyIndex : IDisposable
                     throw new InvalidDataException(Messages.IndexFileForeignName(name, workerId));
                 }
 
-                segments.Add(IndexSegment.Open(Path.Combine(folder, name)));
+                segments.Add(open.Find(s => s.Name == name) ?? IndexSegment.Open(Path.Combine(folder, name)));
             }
         }
         catch
         {
-            segments.ForEach(s => s.Dispose());
+            segments.Where(s => !open.Contains(s)).ToList().ForEach(s => s.Dispose());
             throw;
         }
 
-        return new KeyIndex(generation, segments);
+        return segments;
     }
 
     public bool TryFirst(UnitKeyBits key, out KeyRecord record)

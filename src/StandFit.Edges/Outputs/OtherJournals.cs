@@ -95,9 +95,15 @@ internal sealed class OtherJournals(string folder, string ownJournal) : IDisposa
         using var stream = new FileStream(path, FileMode.Open, FileAccess.Read, FileShare.ReadWrite | FileShare.Delete);
         var (generation, segments, bodyStart) = ReadHeader(stream);
         _views.TryGetValue(path, out var view);
-        if (view is null || view.Index.Generation != generation || stream.Length < view.Offset)
+        var worker = IndexFiles.WorkerOfJournal(path);
+        if (view is not null && generation > view.Index.Generation)
         {
-            var index = generation == 0 ? KeyIndex.Empty() : KeyIndex.Open(folder, IndexFiles.WorkerOfJournal(path), generation, segments);
+            view.Index.Follow(folder, worker, generation, segments); // compacted since: the files it kept stay open
+            view.Offset = bodyStart;
+        }
+        else if (view is null || view.Index.Generation != generation || stream.Length < view.Offset)
+        {
+            var index = generation == 0 ? KeyIndex.Empty() : KeyIndex.Open(folder, worker, generation, segments);
             view?.Dispose();
             view = new View(index, bodyStart);
             _views[path] = view;
