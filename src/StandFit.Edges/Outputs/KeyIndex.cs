@@ -13,6 +13,8 @@ internal sealed class KeyIndex : IDisposable
 {
     private List<IndexSegment> _segments;
 
+    private delegate bool SegmentSearch<T>(IndexSegment segment, out T record);
+
     private KeyIndex(int generation, List<IndexSegment> segments)
     {
         Generation = generation;
@@ -75,41 +77,11 @@ internal sealed class KeyIndex : IDisposable
         return segments;
     }
 
-    public bool TryFirst(UnitKeyBits key, out KeyRecord record)
-    {
-        if (Recent.TryFind(key, out record))
-        {
-            return true;
-        }
+    public bool TryFirst(UnitKeyBits key, out KeyRecord record) =>
+        Recent.TryFind(key, out record) || TryNewestFirst((IndexSegment s, out KeyRecord r) => s.TryFind(key, out r), out record);
 
-        for (var i = _segments.Count - 1; i >= 0; i--)
-        {
-            if (_segments[i].TryFind(key, out record))
-            {
-                return true;
-            }
-        }
-
-        return false;
-    }
-
-    public bool TryLatest(UInt128 serial, out SerialRecord record)
-    {
-        if (Recent.TryFind(serial, out record))
-        {
-            return true;
-        }
-
-        for (var i = _segments.Count - 1; i >= 0; i--)
-        {
-            if (_segments[i].TryFind(serial, out record))
-            {
-                return true;
-            }
-        }
-
-        return false;
-    }
+    public bool TryLatest(UInt128 serial, out SerialRecord record) =>
+        Recent.TryFind(serial, out record) || TryNewestFirst((IndexSegment s, out SerialRecord r) => s.TryFind(serial, out r), out record);
 
     /// <summary>After a compaction: the new generation and files; the recent keys are in them now. Files no longer named are closed.</summary>
     public void Advance(int generation, List<IndexSegment> segments)
@@ -128,5 +100,20 @@ internal sealed class KeyIndex : IDisposable
     {
         _segments.ForEach(s => s.Dispose());
         _segments = [];
+    }
+
+    private bool TryNewestFirst<T>(SegmentSearch<T> search, out T record)
+        where T : struct
+    {
+        for (var i = _segments.Count - 1; i >= 0; i--)
+        {
+            if (search(_segments[i], out record))
+            {
+                return true;
+            }
+        }
+
+        record = default;
+        return false;
     }
 }
