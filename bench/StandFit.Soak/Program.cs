@@ -199,7 +199,7 @@ var growthOk = Math.Abs(predicted) <= 2 * growth.ResidualSd;
 Console.WriteLine(string.Create(CultureInfo.InvariantCulture, $"""
 
     soak: {count} files through standfit watch in {elapsed:F0} s ({count / elapsed:F0} units/s), exit code {child.ExitCode}
-    machine: {Environment.ProcessorCount} cores, .NET {Environment.Version}
+    machine: {Environment.ProcessorCount} cores, .NET {Environment.Version}, load average (1, 5, 15 min) at the end {LoadAverage()}
     archived {archived}, summary rows {rows}, distinct pass/fail keys {keys}, rows with retest_of {linked} (retests dropped {retests})
     journal: {journalBytes} bytes; index: {indexFiles} files, {indexBytes} bytes ({(double)indexBytes / count:F1} bytes per unit)
     peak working set (VmHWM) {peakRss / MiB:F1} MiB = {peakRss / 1e6:F1} MB (ceiling 250 MB = {CeilingBytes / MiB:F1} MiB): {(peakOk ? "ok" : "OVER")}
@@ -268,6 +268,19 @@ static (double Slope, double SlopeSe, double ResidualSd) Fit(IReadOnlyList<(doub
     var sse = points.Sum(p => Math.Pow(p.Y - my - (slope * (p.X - mx)), 2));
     var sd = Math.Sqrt(sse / (n - 2));
     return (slope, sxx > 0 ? sd / Math.Sqrt(sxx) : double.NaN, sd);
+}
+
+// Other work on the machine slows the worker: the figures are read with this beside them.
+static string LoadAverage()
+{
+    try
+    {
+        return string.Join(", ", File.ReadAllText("/proc/loadavg").Split(' ').Take(3));
+    }
+    catch (IOException)
+    {
+        return "unknown";
+    }
 }
 
 static long Kb(string line) => long.Parse(line.Split(' ', StringSplitOptions.RemoveEmptyEntries)[1], CultureInfo.InvariantCulture) * 1024;
