@@ -54,10 +54,11 @@ File.WriteAllText(config, $"""
     """);
 
 // Inputs: the demo's first KP-250 unit with its own serial, test start and seeded output noise;
-// every 50th file after the first RetestLag is a retest of the serial of the file RetestLag before
-// it (new readings), whose earlier row is then long folded into the index files on disk.
+// every 50th file after the first RetestLag is a retest of the unit of the file RetestLag before
+// it (new readings, the same serial), whose latest row is then long folded into the index files on
+// disk; those past 2 x RetestLag make chains of three, and more.
 const int RetestLag = 25_000;
-static int SerialOf(int i) => i > RetestLag && i % 50 == 0 ? i - RetestLag : i;
+static int SerialOf(int i) => i > RetestLag && i % 50 == 0 ? SerialOf(i - RetestLag) : i;
 var retests = Enumerable.Range(1, count).Count(i => SerialOf(i) != i);
 var template = File.ReadAllLines(Path.Combine(repo, "sample-runs", "line-3", "KP250-26110-0001.csv"));
 var clock = Stopwatch.StartNew();

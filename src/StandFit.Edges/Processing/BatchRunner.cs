@@ -37,6 +37,7 @@ public sealed class BatchRunner(
     ILogger logger) : IDisposable
 {
     private readonly Dictionary<string, long> _unreadableLogged = new(StringComparer.Ordinal);
+    private readonly HeapGuard _heap = new(HeapGuard.DefaultLimitBytes);
     private PublishJournal? _journal;
     private int _batchSequence;
 
@@ -321,6 +322,8 @@ public sealed class BatchRunner(
         {
             Log.JournalCompacted(logger, compacted.Units, compacted.Generation, compacted.IndexFiles, compacted.IndexKeys, compacted.IndexBytes, compacted.JournalBytesBefore, compacted.JournalBytesAfter);
         }
+
+        _heap.AfterBatch();
 
         return counts;
     }
