@@ -171,6 +171,19 @@ public static class Messages
     public static string NonFiniteFit() => "the fit produced a non-finite number; the data are out of range for this model. Check the data and the model.";
     public static string InternalError(string exceptionType) => F($"the tool failed on this unit ({exceptionType}); the operations log has the details. Please report it.");
 
+    // ---- the publish journal and its index files (docs/outputs.md#the-journal) ----------------
+    private const string JournalRemedy = "Restore the journal folder from a backup, or move the worker's journal and its index files (WORKER.jsonl, WORKER.*.idx) aside to start anew (earlier units are then no longer known as duplicates).";
+
+    public static string OutputFolderMissing(string folder) => F($"The output folder {folder} does not exist.");
+    public static string JournalDamagedLine(int line, string journal, string detail) => F($"Line {line} of the journal {journal} is damaged ({detail}). It is not the last line, so it was not a crash in mid-write; the journal was edited. {JournalRemedy}");
+    public static string JournalHeaderNotFirst() => "an index header line is only valid as the first line";
+    public static string JournalIndexFileMissing(string journal, string file) => F($"The journal {journal} names the index file {file}, which is missing: the keys it held are lost. {JournalRemedy}");
+    public static string JournalIndexFileDamaged(string journal, string detail) => F($"An index file the journal {journal} names is damaged: {detail}. {JournalRemedy}");
+    public static string IndexFileNoFooter(string file, long bytes) => F($"{file} ({bytes} bytes) does not end in an index footer");
+    public static string IndexFileWrongLength(string file, long bytes, long keys, long serials, long expected) => F($"{file} has {bytes} bytes, but its footer counts {keys} keys and {serials} serials, which take {expected}");
+    public static string IndexFileChecksum(string file) => F($"{file} does not match its checksum");
+    public static string IndexFileForeignName(string file, string workerId) => F($"'{file}' is not the name of an index file of worker {workerId}");
+
     // ---- model expressions (docs/expressions.md) ---------------------------------------------
     public static string ExpressionEmpty() => "the expression is empty; write the model, for example R25*exp(beta*(1/x - 1/298.15)).";
     public static string ExpressionTooLong(int length, int limit) => F($"the expression has {length} characters, over the limit of {limit}. Shorten it.");

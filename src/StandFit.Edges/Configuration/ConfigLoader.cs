@@ -14,7 +14,7 @@ public static class ConfigLoader
     public static readonly ImmutableArray<string> FolderKeys = ["inbox", "archive", "rejected", "output", "recipes", "logs"];
     public static readonly ImmutableArray<string> ReaderKeys = ["max_file_bytes"];
     public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds", "stable_seconds", "worker_id", "status_seconds", "fault_log_seconds"];
-    public static readonly ImmutableArray<string> OutputKeys = ["flush_units"];
+    public static readonly ImmutableArray<string> OutputKeys = ["flush_units", "journal_compact_units"];
 
     public static Result<StandFitOptions> Load(string path)
     {
@@ -75,6 +75,7 @@ public static class ConfigLoader
         var faultLog = watch?.Number("fault_log_seconds", required: false);
         var outputSection = top.Map("output", OutputKeys, required: false);
         var flushUnits = outputSection?.Integer("flush_units", required: false);
+        var compactUnits = outputSection?.Integer("journal_compact_units", required: false);
 
         Positive(reader, "max_file_bytes", maxBytes);
         Positive(watch, "poll_seconds", poll);
@@ -90,6 +91,7 @@ public static class ConfigLoader
             watch.Sink.Add(RecipeCodes.BadValue, Messages.BadWorkerId(SweepAssembler.Shown(workerId)), watch.Node("worker_id"));
         }
         Positive(outputSection, "flush_units", flushUnits);
+        Positive(outputSection, "journal_compact_units", compactUnits);
 
         if (sink.HasProblems)
         {
@@ -114,6 +116,7 @@ public static class ConfigLoader
             StatusSeconds = status ?? defaults.StatusSeconds,
             FaultLogSeconds = faultLog ?? defaults.FaultLogSeconds,
             FlushUnits = flushUnits ?? defaults.FlushUnits,
+            JournalCompactUnits = compactUnits ?? defaults.JournalCompactUnits,
         };
     }
 

@@ -48,4 +48,7 @@ public sealed record StandFitOptions
 
     /// <summary>Units per Parquet file and per pass/fail log flush in a one-shot run (default 5000).</summary>
     public int FlushUnits { get; init; } = 5000;
+
+    /// <summary>Compact the publish journal into its index files once it holds this many units (default 10000).</summary>
+    public int JournalCompactUnits { get; init; } = Outputs.PublishJournal.DefaultCompactUnits;
 }

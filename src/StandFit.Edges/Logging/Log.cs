@@ -46,10 +46,13 @@ public static partial class Log
     public static partial void Recovered(ILogger logger, int batches, int inputs);
 
     [LoggerMessage(EventId = 2006, Level = LogLevel.Information, Message = "Journal read: {Keys} unit keys published, {Pending} claimed inputs to finish, {Orphans} temporary files of an uncommitted batch removed")]
-    public static partial void JournalOpened(ILogger logger, int keys, int pending, int orphans);
+    public static partial void JournalOpened(ILogger logger, long keys, int pending, int orphans);
 
     [LoggerMessage(EventId = 2007, Level = LogLevel.Error, Message = "Summary file {File} of committed batch {Batch} is missing (neither its temporary nor its final name exists); its rows are lost. Restore the file from a backup")]
     public static partial void CommittedFileMissing(ILogger logger, string file, string batch);
+
+    [LoggerMessage(EventId = 2008, Level = LogLevel.Information, Message = "Journal compacted: {Units} units folded into index generation {Generation} ({IndexFiles} index files, {IndexKeys} unit keys, {IndexBytes} bytes); the journal went from {BytesBefore} to {BytesAfter} bytes")]
+    public static partial void JournalCompacted(ILogger logger, int units, int generation, int indexFiles, long indexKeys, long indexBytes, long bytesBefore, long bytesAfter);
 
     [LoggerMessage(EventId = 2009, Level = LogLevel.Warning, Message = "The runs table row {File} cannot be written: {Why}; summaries, points and the pass/fail log are not affected")]
     public static partial void RunRecordUnwritable(ILogger logger, string file, string why);

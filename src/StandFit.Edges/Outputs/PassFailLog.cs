@@ -1,5 +1,6 @@
 using System.Globalization;
 using System.Text;
+using StandFit.Core.Problems;
 
 namespace StandFit.Edges.Outputs;
 
@@ -30,7 +31,7 @@ public sealed class PassFailLog : IAuditSink
         {
             if (!Directory.Exists(Path.GetDirectoryName(_folder)))
             {
-                throw new DirectoryNotFoundException($"The output folder {Path.GetDirectoryName(_folder)} does not exist.");
+                throw new DirectoryNotFoundException(Messages.OutputFolderMissing(Path.GetDirectoryName(_folder)!));
             }
 
             Directory.CreateDirectory(_folder);

@@ -38,7 +38,7 @@ public sealed class BatchRunner(
     TimeProvider clock,
     string toolVersion,
     int batchSize,
-    ILogger logger)
+    ILogger logger) : IDisposable
 {
     private readonly Dictionary<string, long> _unreadableLogged = new(StringComparer.Ordinal);
 
@@ -47,6 +47,7 @@ public sealed class BatchRunner(
 
     private readonly Lock _publishedGate = new();
     private readonly BatchCounts _published = new();
+    private readonly HeapGuard _heap = new(HeapGuard.DefaultLimitBytes);
     private PublishJournal? _journal;
     private int _batchSequence;
 
@@ -78,6 +79,9 @@ public sealed class BatchRunner(
     /// <summary>How often the same unreadable input is logged again.</summary>
     public TimeSpan RepeatLogInterval { get; init; } = TimeSpan.FromMinutes(5);
 
+    /// <summary>Compact the journal once it holds this many units (<c>output.journal_compact_units</c>).</summary>
+    public int JournalCompactUnits { get; init; } = PublishJournal.DefaultCompactUnits;
+
     public IInputIntake Intake => intake;
 
     public string WorkerId => workerId;
@@ -107,7 +111,9 @@ public sealed class BatchRunner(
     public void Start()
     {
         var live = intake.Leftovers().Select(i => i.Claim).OfType<string>().ToHashSet(StringComparer.Ordinal);
-        _journal = PublishJournal.Open(outputFolder, workerId, live);
+        _journal?.Dispose();
+        _journal = null;
+        _journal = PublishJournal.Open(outputFolder, workerId, live, JournalCompactUnits);
         var keep = _journal.Unlogged.SelectMany(b => b.Files).ToHashSet(StringComparer.Ordinal);
         var orphans = 0;
         try
@@ -452,8 +458,17 @@ public sealed class BatchRunner(
         }
 
         Log.BatchPublished(logger, counts.Processed, counts.Passed, counts.Failed, counts.Retest, counts.Rejected);
+        if (journal.CompactIfDue() is { } compacted)
+        {
+            Log.JournalCompacted(logger, compacted.Units, compacted.Generation, compacted.IndexFiles, compacted.IndexKeys, compacted.IndexBytes, compacted.JournalBytesBefore, compacted.JournalBytesAfter);
+        }
+
+        _heap.AfterBatch();
+
         return counts;
     }
+
+    public void Dispose() => _journal?.Dispose();
 
     private void Dispose(InputFile input, JournalUnit unit, DateTime at)
     {

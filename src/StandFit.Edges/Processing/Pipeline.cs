@@ -94,6 +94,7 @@ public sealed class Pipeline : IDisposable
                 OnDuplicate = onDuplicate,
                 HoldUncoveredParts = holdUncoveredParts && claims is not null,
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
+                JournalCompactUnits = options.JournalCompactUnits,
             };
             return new Pipeline(workerLock, options, startedAt.UtcDateTime, recipes, processor, runner, claims);
         }
@@ -104,5 +105,9 @@ public sealed class Pipeline : IDisposable
         }
     }
 
-    public void Dispose() => _lock.Dispose();
+    public void Dispose()
+    {
+        Runner.Dispose();
+        _lock.Dispose();
+    }
 }

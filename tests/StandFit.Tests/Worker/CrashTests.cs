@@ -10,7 +10,8 @@ namespace StandFit.Tests.Worker;
 /// killed with SIGKILL at 25 seeded random moments and restarted each time. A kill moment is the
 /// N-th file-system event anywhere under the worker's folders (claims, temporary Parquet files,
 /// journal and pass/fail appends, renames, moves, status writes), N drawn from a seeded generator,
-/// so kills land in every phase: start-up and recovery, judging, publishing, moving.
+/// so kills land in every phase: start-up and recovery, judging, publishing, moving, and compacting
+/// the journal (every 64 units here, so about 30 compactions fall in the run).
 /// </summary>
 public sealed class CrashTests
 {
@@ -30,7 +31,7 @@ public sealed class CrashTests
         }
 
         using var root = new TempFolder();
-        var config = WorkerConfig.Write(root, flushUnits: 16);
+        var config = WorkerConfig.Write(root, flushUnits: 16, journalCompactUnits: 64);
         var inbox = root.Sub("inbox");
         var inputs = new Dictionary<string, string>(StringComparer.Ordinal); // name -> sha256
         foreach (var path in SweepFiles.Write(inbox, ValidFiles, Seed))
@@ -125,6 +126,12 @@ public sealed class CrashTests
         Assert.Equal(inputs.Count, byInput.Count());
         Assert.All(byInput, g => Assert.Single(g.Distinct(StringComparer.Ordinal)));
         Assert.Equal(distinctContents, lines.Select(l => l[(l.LastIndexOf(" key=", StringComparison.Ordinal) + 5)..]).Distinct(StringComparer.Ordinal).Count());
+
+        // The journal was compacted: its keys are in index files, and it holds fewer units than one compaction.
+        var journal = Path.Combine(root.Path, "output", "journal");
+        Assert.NotEmpty(Directory.EnumerateFiles(journal, "test-worker.*.idx"));
+        var journalUnits = File.ReadLines(Path.Combine(journal, "test-worker.jsonl")).Sum(l => l.Split("\"key\":").Length - 1);
+        Assert.InRange(journalUnits, 0, 64 + 16);
 
         // The kills fell while work was in hand, not only after the end.
         Assert.True(killsDuringWork >= Kills * 3 / 4, $"only {killsDuringWork} of {Kills} kills fell while inputs remained");
