@@ -32,6 +32,8 @@ internal static class DiagnosticsProfile
             var groups = SetPoints.Group(fit.Stimulus.AsSpan(), options.SetPointTolerance);
             var points = Influence.Points(fit);
             var acquisition = ResidualOrders.ByAcquisition(fit.Count);
+            var kept = DurbinWatson.KeptColumns(design, null).Columns;
+            var sine = DurbinWatson.SineTransform(kept, fit.Count);
             var parts = new (string Name, Func<double> Op)[]
             {
                 ("ResidualDiagnostics.Compute (all)", () => ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), options).DurbinWatson.P),
@@ -39,6 +41,9 @@ internal static class DiagnosticsProfile
                 ("DurbinWatson eigenvalues", () => DurbinWatson.Eigenvalues(design, null)[0]),
                 ("DurbinWatson.Compute (exact p)", () => DurbinWatson.Compute(fit).P),
                 ("  without eigenvalues (columns+sines+integral)", () => DurbinWatson.LowerTailWithoutEigenvalues(design, null, dw.Statistic, true)),
+                ("  kept columns", () => DurbinWatson.KeptColumns(design, null).M),
+                ("  sine transform", () => DurbinWatson.SineTransform(kept, fit.Count).W[0]),
+                ("  low-rank integral", () => LowRankQuadraticForm.LowerTail(sine.Lambda, sine.W, kept.Count, design.Columns - 1, dw.Statistic)),
                 ("DurbinWatson Imhof integral", () => DurbinWatson.LowerTail(eigenvalues, dw.Statistic)),
                 ("runs test (acquisition)", () => RunsTest.Compute(residuals, acquisition).P),
                 ("lag-1 autocorrelation", () => Autocorrelation.Lag1(residuals).P),

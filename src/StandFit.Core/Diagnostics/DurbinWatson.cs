@@ -125,7 +125,7 @@ public static class DurbinWatson
     private static double[] Floor(double[] values) => [.. values.Where(v => v > EigenvalueFloor).Order()];
 
     /// <summary>The columns c of G = D Q (rows in <paramref name="order"/>) whose outer products sum to G G', those D does not annihilate; and m = n - 1.</summary>
-    private static (List<double[]> Columns, int M) KeptColumns(DesignBasis design, int[]? order)
+    internal static (List<double[]> Columns, int M) KeptColumns(DesignBasis design, int[]? order)
     {
         var n = design.Rows;
         var p = design.Columns;
@@ -193,7 +193,7 @@ public static class DurbinWatson
     }
 
     /// <summary>T's eigenvalues lambda_j = 4 sin^2(j pi / 2n), ascending, and the columns in T's eigenbasis (column-major m x r).</summary>
-    private static (double[] Lambda, double[] W) SineTransform(List<double[]> columns, int n)
+    internal static (double[] Lambda, double[] W) SineTransform(List<double[]> columns, int n)
     {
         var m = n - 1;
         var basis = SineBasis.Of(n);

@@ -21,7 +21,7 @@ namespace StandFit.Core.Diagnostics;
 internal static class QuadraticForm
 {
     internal const double TailTolerance = 1e-10;
-    internal const double RadiansPerPanel = 6.0;
+    internal const double RadiansPerPanel = 8.0;
     internal const int MaxPanels = 4000;
     internal static readonly (double[] Nodes, double[] Weights) Gauss = GaussLegendre(8);
 
