@@ -8,6 +8,7 @@ using StandFit.Benchmarks;
 // standfit-benchmarks                    the BenchmarkDotNet suite (one core, in process)
 // standfit-benchmarks coverage [UNITS]   the coverage study of docs/uncertainty.md
 // standfit-benchmarks cputime [OPS]     CPU time per operation (a cross-check on a loaded machine)
+// standfit-benchmarks diagprofile [OPS] CPU time of each part of the residual diagnostics
 // standfit-benchmarks fixture DIR        the data and resample indices that boot_reference.R reads
 if (args.Length > 0 && args[0] == "coverage")
 {
@@ -19,6 +20,12 @@ if (args.Length > 0 && args[0] == "coverage")
 if (args.Length > 0 && args[0] == "cputime")
 {
     Console.Write(CpuTime.Run(args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 2000));
+    return 0;
+}
+
+if (args.Length > 0 && args[0] == "diagprofile")
+{
+    Console.Write(DiagnosticsProfile.Run(args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 20000));
     return 0;
 }
 

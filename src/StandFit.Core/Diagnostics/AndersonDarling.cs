@@ -52,12 +52,18 @@ public static class AndersonDarling
             return AndersonDarlingResult.NotApplicable;
         }
 
+        // ln p_i and ln(1 - p_i) = ln Phi(-z_i) of each point from one tail probability.
+        Span<double> logLower = n <= 512 ? stackalloc double[n] : new double[n];
+        Span<double> logUpper = n <= 512 ? stackalloc double[n] : new double[n];
+        for (var i = 0; i < n; i++)
+        {
+            (logLower[i], logUpper[i]) = Probability.LogNormalCdfBoth((x[i] - mean) / sd);
+        }
+
         var sum = 0.0;
         for (var i = 0; i < n; i++)
         {
-            var lower = Probability.LogNormalCdf((x[i] - mean) / sd);
-            var upper = Probability.LogNormalCdf(-(x[n - 1 - i] - mean) / sd);
-            sum += ((2.0 * (i + 1)) - 1) * (lower + upper);
+            sum += ((2.0 * (i + 1)) - 1) * (logLower[i] + logUpper[n - 1 - i]);
         }
 
         var a2 = -n - (sum / n);

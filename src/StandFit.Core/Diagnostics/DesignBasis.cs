@@ -3,7 +3,7 @@ using StandFit.Core.Fitting;
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
-/// An orthonormal basis Q (n x p) of a fit's design space, from the Householder QR of the fit's own
+/// An orthonormal basis Q (n x p) of a fit's design space, by Gram-Schmidt twice on the fit's own
 /// centred and scaled basis (the same column space as the natural one, well conditioned). The
 /// residual-based tests project with it: M v = v - Q Q' v, taken twice (one reorthogonalisation
 /// step is enough to reach working accuracy).
@@ -36,7 +36,7 @@ internal sealed class DesignBasis
         var n = fit.Count;
         var p = fit.ParameterCount;
         var columns = new double[n * p];
-        var row = new double[p];
+        Span<double> row = stackalloc double[p];
         for (var i = 0; i < n; i++)
         {
             fit.FillDesignRow(i, row);
@@ -49,28 +49,81 @@ internal sealed class DesignBasis
         return FromColumns(columns, n, p, fit.HasIntercept);
     }
 
-    /// <summary>An orthonormal basis of the span of the columns (column-major n x p, full column rank).</summary>
+    /// <summary>
+    /// An orthonormal basis of the span of the columns (column-major n x p, full column rank; the
+    /// array becomes the basis). Gram-Schmidt with one reorthogonalisation per column ("twice is
+    /// enough": orthogonal to working accuracy for any numerically full-rank matrix; Giraud, Langou,
+    /// Rozloznik and van den Eshof 2005, Numer. Math. 101: 87-100), on columns scaled to unit length
+    /// first. The fit's own design is centred and scaled, so it is far from rank-deficient.
+    /// </summary>
     public static DesignBasis FromColumns(double[] columns, int n, int p, bool hasConstant)
     {
-        // Equilibrate, so that the QR's pivoting sees columns of equal weight.
-        var equilibrated = new double[n * p];
+        var original = columns.ToArray();
         for (var j = 0; j < p; j++)
         {
-            var norm = 0.0;
-            for (var i = 0; i < n; i++)
+            var column = columns.AsSpan(j * n, n);
+            Normalise(column);
+            for (var pass = 0; pass < 2; pass++)
             {
-                norm += columns[(j * n) + i] * columns[(j * n) + i];
-            }
+                for (var k = 0; k < j; k++)
+                {
+                    var basis = columns.AsSpan(k * n, n);
+                    var dot = Dot(basis, column);
+                    for (var i = 0; i < n; i++)
+                    {
+                        column[i] -= dot * basis[i];
+                    }
+                }
 
-            norm = norm > 0 ? Math.Sqrt(norm) : 1.0;
-            for (var i = 0; i < n; i++)
-            {
-                equilibrated[(j * n) + i] = columns[(j * n) + i] / norm;
+                // A column (nearly) dependent on the earlier ones: Householder QR with pivoting instead.
+                if (!Normalise(column, pass == 0 ? 1e-8 : 0.5))
+                {
+                    return Householder(original, n, p, hasConstant);
+                }
             }
         }
 
-        var qr = new HouseholderQr(equilibrated, n, p);
+        return new DesignBasis(columns, n, p, hasConstant);
+    }
+
+    /// <summary>The thin Q of the Householder QR (with column pivoting) of the equilibrated columns.</summary>
+    private static DesignBasis Householder(double[] columns, int n, int p, bool hasConstant)
+    {
+        for (var j = 0; j < p; j++)
+        {
+            _ = Normalise(columns.AsSpan(j * n, n), 0);
+        }
+
+        var qr = new HouseholderQr(columns, n, p);
         return new DesignBasis(qr.ThinQ(), n, p, hasConstant);
+    }
+
+    private static double Dot(ReadOnlySpan<double> a, ReadOnlySpan<double> b)
+    {
+        var sum = 0.0;
+        for (var i = 0; i < a.Length; i++)
+        {
+            sum += a[i] * b[i];
+        }
+
+        return sum;
+    }
+
+    /// <summary>Scales v to unit length; false, leaving v as it is, when its length is not above <paramref name="floor"/> (or is 0).</summary>
+    private static bool Normalise(Span<double> v, double floor = 0)
+    {
+        var norm = Math.Sqrt(Dot(v, v));
+        if (!(norm > floor))
+        {
+            return norm > 0 && floor == 0;
+        }
+
+        foreach (ref var x in v)
+        {
+            x /= norm;
+        }
+
+        return true;
     }
 
     /// <summary>The residual of <paramref name="v"/> after projection on the design space, in place: v - Q Q' v, twice.</summary>

@@ -35,6 +35,16 @@ internal static class Probability
         return (-0.5 * z * z) - HalfLogTwoPi - Math.Log(-z) + LogOnePlus(-r + (3 * r * r) - (15 * r * r * r));
     }
 
+    /// <summary>ln Phi(z) and ln Phi(-z) from one tail probability: the same values as <see cref="LogNormalCdf"/> of z and of -z.</summary>
+    public static (double Lower, double Upper) LogNormalCdfBoth(double z)
+    {
+        // q = Phi(-|z|), the smaller tail; the other is 1 - q, taken as log1p(-q).
+        var q = NormalUpper(Math.Abs(z));
+        var small = -Math.Abs(z) > -37 ? Math.Log(q) : LogNormalCdf(-Math.Abs(z));
+        var large = LogOnePlus(-q);
+        return z > 0 ? (large, small) : z < 0 ? (small, large) : (Math.Log(q), Math.Log(q));
+    }
+
     /// <summary>The standard normal quantile Phi^-1(p), 0 &lt; p &lt; 1.</summary>
     public static double NormalQuantile(double p) => -Sqrt2 * SpecialFunctions.ErfcInv(2.0 * p);
 

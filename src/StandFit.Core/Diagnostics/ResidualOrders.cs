@@ -46,14 +46,29 @@ public static class ResidualOrders
     /// <summary>Point indices sorted by stimulus; ties keep acquisition order (a stable sort).</summary>
     public static int[] ByStimulus(ReadOnlySpan<double> stimulus)
     {
-        var order = new int[stimulus.Length];
-        for (var i = 0; i < order.Length; i++)
+        var keyed = new Keyed[stimulus.Length];
+        for (var i = 0; i < keyed.Length; i++)
         {
-            order[i] = i;
+            keyed[i] = new Keyed(stimulus[i], i);
         }
 
-        var keys = stimulus.ToArray();
-        Array.Sort(order, (a, b) => keys[a] != keys[b] ? keys[a].CompareTo(keys[b]) : a.CompareTo(b));
+        // The index breaks ties, so the unstable sort gives the stable order.
+        Array.Sort(keyed);
+        var order = new int[keyed.Length];
+        for (var i = 0; i < order.Length; i++)
+        {
+            order[i] = keyed[i].Index;
+        }
+
         return order;
+    }
+
+    private readonly record struct Keyed(double Value, int Index) : IComparable<Keyed>
+    {
+        public int CompareTo(Keyed other)
+        {
+            var c = Value.CompareTo(other.Value);
+            return c != 0 ? c : Index.CompareTo(other.Index);
+        }
     }
 }

@@ -110,14 +110,47 @@ public static class RunsTest
         }
     }
 
-    /// <summary>Two-sided exact p-value: twice the smaller tail, at most 1.</summary>
+    /// <summary>
+    /// Two-sided exact p-value: twice the smaller tail, at most 1. The probabilities of
+    /// <see cref="Probability"/>, from binomial coefficients by their recurrence C(a, k + 1) =
+    /// C(a, k) (a - k) / (k + 1) (exact integers below 2^53 for counts up to <see cref="ExactLimit"/>).
+    /// </summary>
     private static double ExactTwoSided(int runs, int n1, int n2)
     {
         var maxRuns = n1 == n2 ? 2 * n1 : (2 * Math.Min(n1, n2)) + 1;
+        var top = Math.Max(n1, n2);
+        Span<double> a = stackalloc double[top + 1]; // a[k] = C(n1 - 1, k)
+        Span<double> b = stackalloc double[top + 1]; // b[k] = C(n2 - 1, k)
+        a[0] = b[0] = 1;
+        for (var k = 0; k < top; k++)
+        {
+            a[k + 1] = a[k] * (n1 - 1 - k) / (k + 1);
+            b[k + 1] = b[k] * (n2 - 1 - k) / (k + 1);
+        }
+
+        // C(n1 + n2, n1) as a product of ratios.
+        var total = 1.0;
+        for (var i = 1; i <= n1; i++)
+        {
+            total = total * (n2 + i) / i;
+        }
+
         double lower = 0, upper = 0;
         for (var r = 2; r <= maxRuns; r++)
         {
-            var pr = Probability(r, n1, n2);
+            var k = r / 2;
+            double ways;
+            if (r % 2 == 0)
+            {
+                ways = 2 * a[k - 1] * b[k - 1];
+            }
+            else
+            {
+                // a[k] = C(n1 - 1, k) is 0 once k > n1 - 1: the recurrence reaches 0 exactly there.
+                ways = (a[k] * b[k - 1]) + (a[k - 1] * b[k]);
+            }
+
+            var pr = ways / total;
             if (r <= runs)
             {
                 lower += pr;

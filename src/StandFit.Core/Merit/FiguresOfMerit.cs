@@ -55,8 +55,7 @@ public sealed record FiguresOfMerit(
             return null;
         }
 
-        // Per set point and direction: sums, counts, and the spread of the readings.
-        Span<Leg> directions = [Leg.Up, Leg.Down, Leg.Unknown];
+        // Per set point and direction (up, down, no leg): sums, counts, and the spread of the readings.
         var sumX = new double[c * 3];
         var sumY = new double[c * 3];
         var count = new int[c * 3];
@@ -64,17 +63,15 @@ public sealed record FiguresOfMerit(
         var max = new double[c * 3];
         Array.Fill(min, double.PositiveInfinity);
         Array.Fill(max, double.NegativeInfinity);
-        for (var d = 0; d < 3; d++)
+        for (var i = 0; i < stimulus.Length; i++)
         {
-            foreach (var i in ResidualOrders.OfLeg(legs, directions[d]))
-            {
-                var k = (groups.GroupOf[i] * 3) + d;
-                sumX[k] += stimulus[i];
-                sumY[k] += output[i];
-                count[k]++;
-                min[k] = Math.Min(min[k], output[i]);
-                max[k] = Math.Max(max[k], output[i]);
-            }
+            var d = legs[i] switch { Leg.Up => 0, Leg.Down => 1, _ => 2 };
+            var k = (groups.GroupOf[i] * 3) + d;
+            sumX[k] += stimulus[i];
+            sumY[k] += output[i];
+            count[k]++;
+            min[k] = Math.Min(min[k], output[i]);
+            max[k] = Math.Max(max[k], output[i]);
         }
 
         var x = new double[c];

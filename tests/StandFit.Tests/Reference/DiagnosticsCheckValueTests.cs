@@ -199,6 +199,115 @@ public sealed class DiagnosticsCheckValueTests
         }
     }
 
+    [Fact]
+    public void The_successive_downdates_agree_with_the_dense_eigenvalues_for_higher_degrees_and_models_through_zero()
+    {
+        // Degrees 2 to 5 take 2 to 5 successive rank-one downdates (through zero: one more); equal
+        // steps and up/down sweeps deflate poles in one column and not in the next. The reference is
+        // the dense eigen-decomposition of C itself.
+        var random = new SplitMix(29);
+        foreach (var n in new[] { 8, 21, 41, 120 })
+        {
+            foreach (var x in new[]
+            {
+                Enumerable.Range(0, n).Select(i => (double)i).ToArray(),
+                Enumerable.Range(0, n).Select(_ => random.NextDouble()).ToArray(),
+                Enumerable.Range(0, n).Select(i => (double)(i < (n + 1) / 2 ? i : n - 1 - i)).ToArray(),
+            })
+            {
+                foreach (var model in new LinearModel[] { Polynomial.OfDegree(2), Polynomial.OfDegree(3), Polynomial.OfDegree(5), Polynomial.StraightLineThroughZero, Polynomial.OfDegree(2, intercept: false) })
+                {
+                    if (n <= model.ParameterCount + 1)
+                    {
+                        continue;
+                    }
+
+                    var fit = LeastSquaresFitter.Fit(model, [.. x], [.. x.Select((v, i) => v + Math.Sin(i))]);
+                    if (!fit.IsSuccess)
+                    {
+                        continue; // an up/down sweep of 8 points has too few distinct set points for degree 5
+                    }
+
+                    var basis = DesignBasis.Of(fit.Value);
+                    var fast = DurbinWatson.Eigenvalues(basis, null);
+                    var dense = DurbinWatson.Eigenvalues(basis, null, dense: true);
+                    Assert.Equal(dense.Length, fast.Length);
+                    for (var k = 0; k < dense.Length; k++)
+                    {
+                        Assert.True(Math.Abs(dense[k] - fast[k]) <= 1e-11, string.Create(CultureInfo.InvariantCulture, $"n = {n}, {model.Name}: eigenvalue {k + 1} {fast[k]:R}, dense {dense[k]:R}"));
+                    }
+                }
+            }
+        }
+    }
+
+    [Fact]
+    public void The_imhof_integral_four_nodes_at_a_time_is_bit_for_bit_the_scalar_integral()
+    {
+        // The same operations in the same order on every lane (no fused multiply-add): the vectorised
+        // integrand must reproduce the scalar one exactly, on Durbin-Watson spectra and on random weights.
+        var random = new SplitMix(31);
+        for (var trial = 0; trial < 200; trial++)
+        {
+            var m = 2 + (trial % 60);
+            var shift = 4 * random.NextDouble();
+            var lambda = Enumerable.Range(1, m).Select(j => (trial % 2 == 0 ? 4 * Math.Pow(Math.Sin(j * Math.PI / (2 * (m + 1))), 2) : 4 * random.NextDouble()) - shift).ToArray();
+            var scalar = QuadraticForm.ProbabilityBelowZero(lambda, vectorised: false);
+            var vector = QuadraticForm.ProbabilityBelowZero(lambda, vectorised: true);
+            Assert.True(scalar.Equals(vector), string.Create(CultureInfo.InvariantCulture, $"m = {m}, shift {shift:R}: scalar {scalar:R}, vectorised {vector:R}"));
+        }
+    }
+
+    [Fact]
+    public void The_integral_without_eigenvalues_gives_the_p_value_of_the_integral_over_the_eigenvalues()
+    {
+        // Designs with an intercept, of degree 1 to 5, equal steps, random stimuli and up/down sweeps,
+        // in index order and in a shuffled order; d across the range of the statistic. The reference is
+        // Imhof's integral over the eigenvalues (themselves checked against R's eigen()).
+        var random = new SplitMix(37);
+        foreach (var n in new[] { 5, 8, 21, 41, 120 })
+        {
+            foreach (var x in new[]
+            {
+                Enumerable.Range(0, n).Select(i => (double)i).ToArray(),
+                Enumerable.Range(0, n).Select(_ => random.NextDouble()).ToArray(),
+                Enumerable.Range(0, n).Select(i => (i < (n + 1) / 2 ? i : n - 1 - i) + (0.002 * random.NextDouble())).ToArray(),
+            })
+            {
+                foreach (var degree in new[] { 1, 2, 3, 5 })
+                {
+                    if (n <= degree + 2)
+                    {
+                        continue;
+                    }
+
+                    var fit = LeastSquaresFitter.Fit(Polynomial.OfDegree(degree), [.. x], [.. x.Select((v, i) => v + Math.Sin(i))]);
+                    if (!fit.IsSuccess)
+                    {
+                        continue;
+                    }
+
+                    var basis = DesignBasis.Of(fit.Value);
+                    var shuffled = Enumerable.Range(0, n).OrderBy(_ => random.NextDouble()).ToArray();
+                    foreach (var order in new[] { null, shuffled })
+                    {
+                        var eigenvalues = DurbinWatson.Eigenvalues(basis, order);
+                        foreach (var d in new[] { 0.4, 0.9, 1.3, 1.7, 2.0, 2.3, 2.8, 3.4 })
+                        {
+                            var expected = DurbinWatson.LowerTail(eigenvalues, d);
+                            foreach (var vectorised in new[] { false, true })
+                            {
+                                var p = DurbinWatson.LowerTailWithoutEigenvalues(basis, order, d, vectorised);
+                                Assert.False(double.IsNaN(p), string.Create(CultureInfo.InvariantCulture, $"n = {n}, degree {degree}, d = {d}: the shortcut did not apply"));
+                                Assert.True(Math.Abs(p - expected) <= 1e-9, string.Create(CultureInfo.InvariantCulture, $"n = {n}, degree {degree}, d = {d}, vectorised {vectorised}: {p:R}, over the eigenvalues {expected:R}"));
+                            }
+                        }
+                    }
+                }
+            }
+        }
+    }
+
     private const double Sag = 0.08;
     private const double Gain = 0.2;
     private const double Span = 250;
