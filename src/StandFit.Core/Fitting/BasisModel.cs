@@ -21,6 +21,10 @@ public class BasisModel : LinearModel
     private readonly int _inputCount;
     private readonly bool[] _centrable;
     private readonly int _constantIndex;
+    private readonly bool[] _scaled;              // input k appears in a monomial term (it is scaled)
+    private readonly int[] _expansionStart;       // per term: its first entry in _expansionTarget (monomials only)
+    private readonly int[] _expansionTarget;      // per entry: the natural term it adds to
+    private readonly int[] _expansionPowers;      // per entry: the lowered power of each input
 
     /// <summary>A model of the given terms, with parameters named by <paramref name="parameterNames"/> (b0, b1 ... when null).</summary>
     public BasisModel(IEnumerable<BasisTerm> terms, int inputCount, IEnumerable<string>? parameterNames = null, string? name = null)
@@ -59,6 +63,13 @@ public class BasisModel : LinearModel
             _centrable[k] = ClosedUnderLowering(monomials, k);
         }
 
+        _scaled = new bool[inputCount];
+        for (var k = 0; k < inputCount; k++)
+        {
+            _scaled[k] = Terms.Any(t => t.IsMonomial && t.Uses(k));
+        }
+
+        (_expansionStart, _expansionTarget, _expansionPowers) = Expansions();
         Name = name ?? "basis(" + string.Join(", ", Terms.Select(t => t.Text)) + ")";
     }
 
@@ -101,27 +112,27 @@ public class BasisModel : LinearModel
 
     public override DesignScaling ChooseScaling(ReadOnlySpan<double> min, ReadOnlySpan<double> max)
     {
-        var scalings = ImmutableArray.CreateBuilder<StimulusScaling>(_inputCount);
+        var scalings = new StimulusScaling[_inputCount];
         for (var k = 0; k < _inputCount; k++)
         {
-            if (!Terms.Any(t => t.IsMonomial && t.Uses(k)))
+            if (!_scaled[k])
             {
-                scalings.Add(StimulusScaling.None);
+                scalings[k] = StimulusScaling.None;
             }
             else if (_centrable[k])
             {
                 var half = (max[k] - min[k]) / 2;
-                scalings.Add(new StimulusScaling(min[k] + half, half > 0 ? half : 1.0));
+                scalings[k] = new StimulusScaling(min[k] + half, half > 0 ? half : 1.0);
             }
             else
             {
                 // The origin must stay where it is: scale only.
                 var reach = Math.Max(Math.Abs(min[k]), Math.Abs(max[k]));
-                scalings.Add(new StimulusScaling(0.0, reach > 0 ? reach : 1.0));
+                scalings[k] = new StimulusScaling(0.0, reach > 0 ? reach : 1.0);
             }
         }
 
-        return new DesignScaling(scalings.MoveToImmutable());
+        return new DesignScaling(System.Runtime.InteropServices.ImmutableCollectionsMarshal.AsImmutableArray(scalings));
     }
 
     public override void FillScaledBasis(ReadOnlySpan<double> x, DesignScaling scaling, Span<double> row)
@@ -142,15 +153,13 @@ public class BasisModel : LinearModel
     {
         // A monomial term on the scaled inputs, prod_k ((x_k - c_k) / h_k)^a_k, expands into
         // prod_k h_k^-a_k sum_{i_k <= a_k} C(a_k, i_k) x_k^i_k (-c_k)^(a_k - i_k); the natural
-        // coefficient of the monomial x^i collects a_t times that factor from every term t.
+        // coefficient of the monomial x^i collects a_t times that factor from every term t. The
+        // expansion's terms (which i, into which natural term) are listed once by the constructor,
+        // in the order of the nested sums (i_1 outermost); an input with centre 0 keeps only
+        // i_k = a_k. Nothing is allocated here.
         var p = ParameterCount;
+        var m = _inputCount;
         map.Clear();
-        var index = new Dictionary<BasisTerm, int>();
-        for (var j = 0; j < p; j++)
-        {
-            index[Terms[j]] = j;
-        }
-
         for (var t = 0; t < p; t++)
         {
             var term = Terms[t];
@@ -160,19 +169,99 @@ public class BasisModel : LinearModel
                 continue;
             }
 
-            var powers = new int[_inputCount];
-            for (var k = 0; k < _inputCount; k++)
+            for (var e = _expansionStart[t]; e < _expansionStart[t + 1]; e++)
             {
-                powers[k] = term.MonomialPower(k);
-            }
+                var factor = 1.0;
+                var kept = true;
+                for (var k = 0; k < m; k++)
+                {
+                    var a = term.MonomialPower(k);
+                    var i = _expansionPowers[(e * m) + k];
+                    var c = scaling[k].Centre;
+                    if (c == 0.0 && i < a)
+                    {
+                        kept = false;
+                        break;
+                    }
 
-            var column = new double[p];
-            Expand(powers, 0, new int[_inputCount], 1.0, scaling, index, column);
-            for (var j = 0; j < p; j++)
-            {
-                map[(j * p) + t] = column[j];
+                    var scale = Math.Pow(scaling[k].HalfRange, -a);
+                    factor = factor * scale * Binomial(a, i) * IntegerPower(-c, a - i);
+                }
+
+                if (!kept)
+                {
+                    continue;
+                }
+
+                var target = _expansionTarget[e];
+                if (target < 0)
+                {
+                    throw new InvalidOperationException("A centred input's expansion needs a term the model does not have.");
+                }
+
+                map[(target * p) + t] += factor;
             }
         }
+    }
+
+    /// <summary>
+    /// Every term of the expansion of each monomial term's (x - c)^a: the lowered powers i_k (0 to
+    /// a_k, i_1 outermost) and the natural term x^i they add to (-1 when the model has no such
+    /// term: the input is then never centred, and the entry is skipped).
+    /// </summary>
+    private (int[] Start, int[] Target, int[] Powers) Expansions()
+    {
+        var p = Terms.Length;
+        var m = _inputCount;
+        var index = new Dictionary<BasisTerm, int>();
+        for (var j = 0; j < p; j++)
+        {
+            index[Terms[j]] = j;
+        }
+
+        var start = new int[p + 1];
+        var targets = new List<int>();
+        var powers = new List<int>();
+        for (var t = 0; t < p; t++)
+        {
+            start[t] = targets.Count;
+            var term = Terms[t];
+            if (!term.IsMonomial)
+            {
+                continue;
+            }
+
+            var lowered = new int[m];
+            while (true)
+            {
+                var half = new int[m];
+                for (var k = 0; k < m; k++)
+                {
+                    half[k] = 2 * lowered[k];
+                }
+
+                targets.Add(index.TryGetValue(BasisTerm.Of(half, new int[m]), out var target) ? target : -1);
+                powers.AddRange(lowered);
+
+                // The next lowered powers, the last input fastest.
+                var k2 = m - 1;
+                while (k2 >= 0 && lowered[k2] == term.MonomialPower(k2))
+                {
+                    lowered[k2] = 0;
+                    k2--;
+                }
+
+                if (k2 < 0)
+                {
+                    break;
+                }
+
+                lowered[k2]++;
+            }
+        }
+
+        start[p] = targets.Count;
+        return (start, [.. targets], [.. powers]);
     }
 
     public override DomainViolation? CheckDomain(ReadOnlySpan<double> x)
@@ -236,26 +325,6 @@ public class BasisModel : LinearModel
 
         var bottom = over.Count == 1 ? over[0] : "(" + string.Join("*", over) + ")";
         return (top.Length == 0 ? "1" : top.ToString()) + "/" + bottom;
-    }
-
-    private void Expand(int[] powers, int k, int[] lowered, double factor, DesignScaling scaling, Dictionary<BasisTerm, int> index, double[] column)
-    {
-        if (k == _inputCount)
-        {
-            var half = lowered.Select(i => 2 * i).ToArray();
-            column[index[BasisTerm.Of(half, new int[_inputCount])]] += factor;
-            return;
-        }
-
-        var a = powers[k];
-        var c = scaling[k].Centre;
-        var scale = Math.Pow(scaling[k].HalfRange, -a);
-        var from = c == 0.0 ? a : 0;
-        for (var i = from; i <= a; i++)
-        {
-            lowered[k] = i;
-            Expand(powers, k + 1, lowered, factor * scale * Binomial(a, i) * IntegerPower(-c, a - i), scaling, index, column);
-        }
     }
 
     private static bool ClosedUnderLowering(HashSet<BasisTerm> monomials, int input)

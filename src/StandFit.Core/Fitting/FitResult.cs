@@ -214,6 +214,6 @@ public sealed class FitResult : IFitResult
             }
         }
 
-        return [.. correlation];
+        return System.Runtime.InteropServices.ImmutableCollectionsMarshal.AsImmutableArray(correlation);
     }
 }

@@ -7,15 +7,38 @@ namespace StandFit.Core.Fitting;
 /// </summary>
 internal sealed class HouseholderQr
 {
-    private readonly int _n;
-    private readonly int _p;
-    private readonly double[] _r;          // column-major n x p; R in the upper triangle
-    private readonly double[] _v;          // column-major n x p; Householder vector k in rows k..n-1 of column k
-    private readonly double[] _vNorm2;     // squared norm of each Householder vector (0: identity)
-    private readonly int[] _permutation;   // column k of R is column _permutation[k] of A
+    private int _n;
+    private int _p;
+    private double[] _r;          // column-major n x p; R in the upper triangle
+    private double[] _v;          // column-major n x p; Householder vector k in rows k..n-1 of column k
+    private double[] _vNorm2;     // squared norm of each Householder vector (0: identity)
+    private int[] _permutation;   // column k of R is column _permutation[k] of A
 
     /// <summary>Factorises <paramref name="a"/> (column-major, n x p); <paramref name="a"/> is not changed.</summary>
     public HouseholderQr(ReadOnlySpan<double> a, int n, int p)
+    {
+        _r = [];
+        _v = [];
+        _vNorm2 = [];
+        _permutation = [];
+        Factor(a, n, p);
+    }
+
+    /// <summary>A workspace with nothing factorised yet: <see cref="Factor"/> fills it, growing its buffers only when a larger matrix comes.</summary>
+    public HouseholderQr()
+    {
+        _r = [];
+        _v = [];
+        _vNorm2 = [];
+        _permutation = [];
+    }
+
+    /// <summary>
+    /// Factorises <paramref name="a"/> (column-major, n x p) into this object's buffers, replacing any
+    /// earlier factorisation; <paramref name="a"/> is not changed. Allocates only when the buffers are
+    /// smaller than n x p.
+    /// </summary>
+    public void Factor(ReadOnlySpan<double> a, int n, int p)
     {
         if (n < p || a.Length != n * p)
         {
@@ -24,10 +47,19 @@ internal sealed class HouseholderQr
 
         _n = n;
         _p = p;
-        _r = a.ToArray();
-        _v = new double[n * p];
-        _vNorm2 = new double[p];
-        _permutation = new int[p];
+        if (_r.Length < n * p)
+        {
+            _r = new double[n * p];
+            _v = new double[n * p];
+        }
+
+        if (_vNorm2.Length < p)
+        {
+            _vNorm2 = new double[p];
+            _permutation = new int[p];
+        }
+
+        a.CopyTo(_r);
         for (var j = 0; j < p; j++)
         {
             _permutation[j] = j;
@@ -83,6 +115,14 @@ internal sealed class HouseholderQr
     public double[] ThinQ()
     {
         var q = new double[_n * _p];
+        ThinQ(q);
+        return q;
+    }
+
+    /// <summary>The first p columns of Q, column-major n x p, into <paramref name="q"/> (at least n x p long).</summary>
+    public void ThinQ(Span<double> q)
+    {
+        q[..(_n * _p)].Clear();
         for (var j = 0; j < _p; j++)
         {
             q[(j * _n) + j] = 1.0;
@@ -92,11 +132,9 @@ internal sealed class HouseholderQr
         {
             for (var j = 0; j < _p; j++)
             {
-                Reflect(k, q.AsSpan(j * _n, _n));
+                Reflect(k, q.Slice(j * _n, _n));
             }
         }
-
-        return q;
     }
 
     /// <summary>Solves R x = b for x (length p), in place.</summary>
@@ -118,6 +156,14 @@ internal sealed class HouseholderQr
     public double[] InverseR()
     {
         var inverse = new double[_p * _p];
+        InverseR(inverse);
+        return inverse;
+    }
+
+    /// <summary>R^-1 (p x p, row-major, upper triangular) into <paramref name="inverse"/> (at least p x p long).</summary>
+    public void InverseR(Span<double> inverse)
+    {
+        inverse[..(_p * _p)].Clear();
         for (var col = 0; col < _p; col++)
         {
             for (var i = col; i >= 0; i--)
@@ -131,8 +177,6 @@ internal sealed class HouseholderQr
                 inverse[(i * _p) + col] = sum / R(i, i);
             }
         }
-
-        return inverse;
     }
 
     private void Reflect(int k, Span<double> y)
@@ -183,6 +227,7 @@ internal sealed class HouseholderQr
             var alpha = Math.Sqrt(SubColumnNorm2(k, k));
             if (alpha == 0.0)
             {
+                _vNorm2[k] = 0.0;
                 continue;
             }
 

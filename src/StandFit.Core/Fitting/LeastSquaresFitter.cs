@@ -16,6 +16,13 @@ namespace StandFit.Core.Fitting;
 /// vector along with the coefficients is what recovers the coefficients when the residuals are
 /// large (NIST StRD Wampler5); refining the coefficients alone stalls there.
 /// </para>
+/// <para>
+/// Memory: every scratch array of a fit (design, QR factors, refinement vectors, covariance
+/// intermediates) comes from a workspace owned by the calling thread and reused by its next fit,
+/// growing only when a larger fit comes; a fit allocates its <see cref="FitResult"/> and the arrays
+/// that result keeps, nothing else. The fitter stays safe to call from several threads at once
+/// (each has its own workspace), and it is not re-entered from inside a fit.
+/// </para>
 /// </summary>
 public static class LeastSquaresFitter
 {
@@ -63,7 +70,7 @@ public static class LeastSquaresFitter
             }
         }
 
-        var distinct = CountDistinctPoints(data.Inputs);
+        var distinct = CountDistinctPoints(data.Inputs, Workspace.ForThread().Order(n));
         return distinct < p ? new Problem(ReasonCodes.FitRankDeficient.Code, Messages.RankDeficient(distinct, p), where) : null;
     }
 
@@ -78,14 +85,16 @@ public static class LeastSquaresFitter
         var n = data.Count;
         var p = model.ParameterCount;
         var m = data.InputCount;
-        var where = SourceLocation.WholeFile(data.SourceName);
         if (CheckFeasible(model, data) is { } infeasible)
         {
             return infeasible;
         }
 
+        var work = Workspace.ForThread();
+        work.Ensure(n, p, m);
+
         // Row scales 1/u_i of a weighted fit.
-        var rowScale = new double[n];
+        var rowScale = work.RowScale.AsSpan(0, n);
         for (var i = 0; i < n; i++)
         {
             if (!data.IsWeighted)
@@ -112,7 +121,7 @@ public static class LeastSquaresFitter
 
         // The response, and the model's domain at every point.
         var y = new double[n];
-        var point = new double[m];
+        var point = work.Point.AsSpan(0, m);
         for (var i = 0; i < n; i++)
         {
             var output = data.Output[i];
@@ -145,13 +154,11 @@ public static class LeastSquaresFitter
             }
         }
 
-        var distinct = CountDistinctPoints(data.Inputs);
-
         var scaling = model.ChooseScaling(min, max);
 
         // The weighted, scaled design, column-major, then every column equilibrated to unit norm.
-        var design = new double[n * p];
-        var row = new double[p];
+        var design = work.Design.AsSpan(0, n * p);
+        var row = work.Row.AsSpan(0, p);
         for (var i = 0; i < n; i++)
         {
             Gather(data.Inputs, i, point);
@@ -162,15 +169,16 @@ public static class LeastSquaresFitter
             }
         }
 
+        var where = SourceLocation.WholeFile(data.SourceName);
         if (!AllFinite(design) || !AllFinite(y))
         {
             return new Problem(ReasonCodes.FitNonFinite.Code, Messages.NonFiniteFit(), where);
         }
 
-        var columnScale = new double[p];
+        var columnScale = work.ColumnScale.AsSpan(0, p);
         for (var j = 0; j < p; j++)
         {
-            var column = design.AsSpan(j * n, n);
+            var column = design.Slice(j * n, n);
             var norm = 0.0;
             foreach (var v in column)
             {
@@ -192,7 +200,8 @@ public static class LeastSquaresFitter
             }
         }
 
-        var qr = new HouseholderQr(design, n, p);
+        var qr = work.Qr;
+        qr.Factor(design, n, p);
         var largestPivot = Math.Abs(qr.R(0, 0));
         for (var k = 0; k < p; k++)
         {
@@ -203,28 +212,29 @@ public static class LeastSquaresFitter
         }
 
         // Coefficients c on the equilibrated basis, then b = T D^-1 c on the natural one.
-        var weighted = new double[n];
+        var qty = work.Qty.AsSpan(0, n);
         for (var i = 0; i < n; i++)
         {
-            weighted[i] = rowScale[i] * y[i];
+            qty[i] = rowScale[i] * y[i];
         }
 
-        var qty = (double[])weighted.Clone();
         qr.ApplyQTranspose(qty);
-        var solution = qty.AsSpan(0, p).ToArray();
+        var solution = work.Solution.AsSpan(0, p);
+        qty[..p].CopyTo(solution);
         qr.SolveUpper(solution);
-        var a = new double[p];
+        var a = work.Coefficients.AsSpan(0, p);
         for (var k = 0; k < p; k++)
         {
             var j = qr.Permutation(k);
             a[j] = solution[k] / columnScale[j];
         }
 
-        var map = new double[p * p];
+        var map = work.Map.AsSpan(0, p * p);
         model.FillNaturalMap(scaling, map);
-        var estimates = MapToNatural(map, a, p);
+        var estimates = new double[p];
+        MapToNatural(map, a, p, estimates);
 
-        Refine(model, data, y, rowScale, qr, columnScale, map, estimates, point);
+        Refine(model, data, y, rowScale, qr, columnScale, map, estimates, point, work);
 
         // Raw and weighted residuals of the refined natural coefficients, each rounded once.
         var residuals = new double[n];
@@ -261,8 +271,9 @@ public static class LeastSquaresFitter
         // Covariance: s^2 R^-1 R^-T on the pivoted, equilibrated basis, then unscaled and mapped.
         var df = n - p;
         var s2 = rss / df;
-        var rInverse = qr.InverseR();
-        var covScaled = new double[p * p];
+        var rInverse = work.InverseR.AsSpan(0, p * p);
+        qr.InverseR(rInverse);
+        var covScaled = work.CovarianceScaled.AsSpan(0, p * p);
         for (var k = 0; k < p; k++)
         {
             for (var l = 0; l < p; l++)
@@ -279,10 +290,12 @@ public static class LeastSquaresFitter
             }
         }
 
-        var covariance = Sandwich(map, covScaled, p);
+        var covariance = new double[p * p];
+        Sandwich(map, covScaled, p, work.SandwichTemp.AsSpan(0, p * p), covariance);
 
         // Leverage: squared row norms of the thin Q.
-        var q = qr.ThinQ();
+        var q = work.ThinQ.AsSpan(0, n * p);
+        qr.ThinQ(q);
         var leverage = new double[n];
         for (var i = 0; i < n; i++)
         {
@@ -295,7 +308,8 @@ public static class LeastSquaresFitter
             leverage[i] = h;
         }
 
-        var rMatrix = new double[p * p];
+        var rMatrix = work.RMatrix.AsSpan(0, p * p);
+        rMatrix.Clear();
         for (var i = 0; i < p; i++)
         {
             for (var j = i; j < p; j++)
@@ -304,7 +318,7 @@ public static class LeastSquaresFitter
             }
         }
 
-        var condition = SingularValues.ConditionNumber(rMatrix, p);
+        var condition = SingularValues.ConditionNumber(rMatrix, p, work.SvdScratch.AsSpan(0, p * p));
         if (!AllFinite(estimates) || !AllFinite(covariance) || !double.IsFinite(rss) || !AllFinite(residuals))
         {
             return new Problem(ReasonCodes.FitNonFinite.Code, Messages.NonFiniteFit(), where);
@@ -336,34 +350,35 @@ public static class LeastSquaresFitter
     /// dc = P R^-1 (d1 - h), dr = Q [h; d2] (Björck 1967); f = y - r - X b and g = -E' r come from
     /// the natural basis in double-double.
     /// </summary>
-    private static void Refine(LinearModel model, FitData data, double[] y, double[] rowScale, HouseholderQr qr, double[] columnScale, double[] map, double[] estimates, double[] point)
+    private static void Refine(LinearModel model, FitData data, double[] y, ReadOnlySpan<double> rowScale, HouseholderQr qr, ReadOnlySpan<double> columnScale, ReadOnlySpan<double> map, double[] estimates, Span<double> point, Workspace work)
     {
         var n = y.Length;
         var p = estimates.Length;
-        var basis = new DoubleDouble[n * p];
+        var basis = work.PreciseBasis.AsSpan(0, n * p);
         for (var i = 0; i < n; i++)
         {
             Gather(data.Inputs, i, point);
-            model.FillBasisPrecise(point, basis.AsSpan(i * p, p));
+            model.FillBasisPrecise(point, basis.Slice(i * p, p));
         }
 
-        var r = new double[n];
+        var r = work.RefineResiduals.AsSpan(0, n);
         for (var i = 0; i < n; i++)
         {
             Gather(data.Inputs, i, point);
             r[i] = ((-model.EvaluatePrecise(estimates, point) + y[i]) * rowScale[i]).ToDouble();
         }
 
-        var f = new double[n];
-        var g = new DoubleDouble[p];
-        var gE = new double[p];
-        var h = new double[p];
-        var z = new double[p];
-        var dr = new double[n];
-        var dc = new double[p];
+        var f = work.RefineF.AsSpan(0, n);
+        var g = work.RefineG.AsSpan(0, p);
+        var gE = work.RefineGE.AsSpan(0, p);
+        var h = work.RefineH.AsSpan(0, p);
+        var z = work.RefineZ.AsSpan(0, p);
+        var dr = work.RefineDr.AsSpan(0, n);
+        var dc = work.RefineDc.AsSpan(0, p);
+        var db = work.RefineDb.AsSpan(0, p);
         for (var step = 0; step < RefinementSteps; step++)
         {
-            Array.Clear(g);
+            g.Clear();
             for (var i = 0; i < n; i++)
             {
                 Gather(data.Inputs, i, point);
@@ -392,7 +407,7 @@ public static class LeastSquaresFitter
             }
 
             qr.SolveUpperTransposed(h);
-            f.CopyTo(dr, 0);
+            f.CopyTo(dr);
             qr.ApplyQTranspose(dr);
             for (var k = 0; k < p; k++)
             {
@@ -408,7 +423,7 @@ public static class LeastSquaresFitter
                 dc[j] = z[k] / columnScale[j];
             }
 
-            var db = MapToNatural(map, dc, p);
+            MapToNatural(map, dc, p, db);
             for (var j = 0; j < p; j++)
             {
                 estimates[j] += db[j];
@@ -435,9 +450,8 @@ public static class LeastSquaresFitter
         }
     }
 
-    private static double[] MapToNatural(double[] map, double[] scaled, int p)
+    private static void MapToNatural(ReadOnlySpan<double> map, ReadOnlySpan<double> scaled, int p, Span<double> natural)
     {
-        var natural = new double[p];
         for (var i = 0; i < p; i++)
         {
             var sum = 0.0;
@@ -448,13 +462,10 @@ public static class LeastSquaresFitter
 
             natural[i] = sum;
         }
-
-        return natural;
     }
 
-    private static double[] Sandwich(double[] map, double[] inner, int p)
+    private static void Sandwich(ReadOnlySpan<double> map, ReadOnlySpan<double> inner, int p, Span<double> temp, Span<double> result)
     {
-        var temp = new double[p * p];
         for (var i = 0; i < p; i++)
         {
             for (var j = 0; j < p; j++)
@@ -469,7 +480,6 @@ public static class LeastSquaresFitter
             }
         }
 
-        var result = new double[p * p];
         for (var i = 0; i < p; i++)
         {
             for (var j = 0; j < p; j++)
@@ -483,32 +493,35 @@ public static class LeastSquaresFitter
                 result[(i * p) + j] = sum;
             }
         }
-
-        return result;
     }
 
-    /// <summary>Number of distinct points (rows of input values).</summary>
-    private static int CountDistinctPoints(ImmutableArray<ImmutableArray<double>> inputs)
+    /// <summary>
+    /// Number of distinct points (rows of input values): the point indices in <paramref name="order"/>
+    /// (n long) are heap-sorted by their rows (lexicographically), then neighbours compared.
+    /// </summary>
+    private static int CountDistinctPoints(ImmutableArray<ImmutableArray<double>> inputs, Span<int> order)
     {
         var n = inputs[0].Length;
-        var order = Enumerable.Range(0, n).ToArray();
-        Array.Sort(order, (a, b) =>
+        for (var i = 0; i < n; i++)
         {
-            foreach (var column in inputs)
-            {
-                var c = column[a].CompareTo(column[b]);
-                if (c != 0)
-                {
-                    return c;
-                }
-            }
+            order[i] = i;
+        }
 
-            return 0;
-        });
+        for (var start = (n / 2) - 1; start >= 0; start--)
+        {
+            SiftDown(inputs, order, start, n);
+        }
+
+        for (var end = n - 1; end > 0; end--)
+        {
+            (order[0], order[end]) = (order[end], order[0]);
+            SiftDown(inputs, order, 0, end);
+        }
+
         var count = n == 0 ? 0 : 1;
         for (var i = 1; i < n; i++)
         {
-            if (inputs.Any(column => column[order[i]] != column[order[i - 1]]))
+            if (ComparePoints(inputs, order[i], order[i - 1]) != 0)
             {
                 count++;
             }
@@ -517,7 +530,46 @@ public static class LeastSquaresFitter
         return count;
     }
 
-    private static bool AllFinite(double[] values)
+    private static void SiftDown(ImmutableArray<ImmutableArray<double>> inputs, Span<int> heap, int root, int length)
+    {
+        while (true)
+        {
+            var child = (2 * root) + 1;
+            if (child >= length)
+            {
+                return;
+            }
+
+            if (child + 1 < length && ComparePoints(inputs, heap[child + 1], heap[child]) > 0)
+            {
+                child++;
+            }
+
+            if (ComparePoints(inputs, heap[child], heap[root]) <= 0)
+            {
+                return;
+            }
+
+            (heap[root], heap[child]) = (heap[child], heap[root]);
+            root = child;
+        }
+    }
+
+    private static int ComparePoints(ImmutableArray<ImmutableArray<double>> inputs, int a, int b)
+    {
+        foreach (var column in inputs)
+        {
+            var c = column[a].CompareTo(column[b]);
+            if (c != 0)
+            {
+                return c;
+            }
+        }
+
+        return 0;
+    }
+
+    private static bool AllFinite(ReadOnlySpan<double> values)
     {
         foreach (var v in values)
         {
@@ -531,4 +583,124 @@ public static class LeastSquaresFitter
     }
 
     private static ImmutableArray<double> Wrap(double[] values) => ImmutableCollectionsMarshal.AsImmutableArray(values);
+
+    /// <summary>
+    /// The scratch of one thread's fits: every buffer at least as long as the largest fit so far
+    /// needed, reused by the next fit on the thread (each fit writes before it reads, so nothing
+    /// carries over from one fit to the next).
+    /// </summary>
+    private sealed class Workspace
+    {
+        [ThreadStatic]
+        private static Workspace? t_current;
+
+        private int _n = -1;
+        private int _p = -1;
+        private int _m = -1;
+        private int[] _order = [];
+
+        public HouseholderQr Qr { get; } = new();
+
+        public double[] RowScale { get; private set; } = [];
+
+        public double[] Point { get; private set; } = [];
+
+        public double[] Design { get; private set; } = [];
+
+        public double[] Row { get; private set; } = [];
+
+        public double[] ColumnScale { get; private set; } = [];
+
+        public double[] Qty { get; private set; } = [];
+
+        public double[] Solution { get; private set; } = [];
+
+        public double[] Coefficients { get; private set; } = [];
+
+        public double[] Map { get; private set; } = [];
+
+        public double[] InverseR { get; private set; } = [];
+
+        public double[] CovarianceScaled { get; private set; } = [];
+
+        public double[] SandwichTemp { get; private set; } = [];
+
+        public double[] ThinQ { get; private set; } = [];
+
+        public double[] RMatrix { get; private set; } = [];
+
+        public double[] SvdScratch { get; private set; } = [];
+
+        public DoubleDouble[] PreciseBasis { get; private set; } = [];
+
+        public double[] RefineResiduals { get; private set; } = [];
+
+        public double[] RefineF { get; private set; } = [];
+
+        public DoubleDouble[] RefineG { get; private set; } = [];
+
+        public double[] RefineGE { get; private set; } = [];
+
+        public double[] RefineH { get; private set; } = [];
+
+        public double[] RefineZ { get; private set; } = [];
+
+        public double[] RefineDr { get; private set; } = [];
+
+        public double[] RefineDc { get; private set; } = [];
+
+        public double[] RefineDb { get; private set; } = [];
+
+        public static Workspace ForThread() => t_current ??= new Workspace();
+
+        /// <summary>An index buffer of at least <paramref name="n"/> entries.</summary>
+        public Span<int> Order(int n)
+        {
+            if (_order.Length < n)
+            {
+                _order = new int[n];
+            }
+
+            return _order.AsSpan(0, n);
+        }
+
+        /// <summary>Grows the buffers to hold a fit of n points, p parameters and m inputs.</summary>
+        public void Ensure(int n, int p, int m)
+        {
+            if (n <= _n && p <= _p && m <= _m)
+            {
+                return;
+            }
+
+            _n = Math.Max(n, _n);
+            _p = Math.Max(p, _p);
+            _m = Math.Max(m, _m);
+            (n, p, m) = (_n, _p, _m);
+            RowScale = new double[n];
+            Point = new double[m];
+            Design = new double[n * p];
+            Row = new double[p];
+            ColumnScale = new double[p];
+            Qty = new double[n];
+            Solution = new double[p];
+            Coefficients = new double[p];
+            Map = new double[p * p];
+            InverseR = new double[p * p];
+            CovarianceScaled = new double[p * p];
+            SandwichTemp = new double[p * p];
+            ThinQ = new double[n * p];
+            RMatrix = new double[p * p];
+            SvdScratch = new double[p * p];
+            PreciseBasis = new DoubleDouble[n * p];
+            RefineResiduals = new double[n];
+            RefineF = new double[n];
+            RefineG = new DoubleDouble[p];
+            RefineGE = new double[p];
+            RefineH = new double[p];
+            RefineZ = new double[p];
+            RefineDr = new double[n];
+            RefineDc = new double[p];
+            RefineDb = new double[p];
+        }
+    }
 }

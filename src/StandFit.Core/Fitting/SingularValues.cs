@@ -4,9 +4,13 @@ namespace StandFit.Core.Fitting;
 internal static class SingularValues
 {
     /// <summary>The 2-norm condition number of a p x p row-major matrix: largest over smallest singular value.</summary>
-    public static double ConditionNumber(double[] matrix, int p)
+    public static double ConditionNumber(double[] matrix, int p) => ConditionNumber(matrix, p, new double[p * p]);
+
+    /// <summary>As <see cref="ConditionNumber(double[], int)"/>, working in <paramref name="scratch"/> (at least p x p long) instead of a copy.</summary>
+    public static double ConditionNumber(ReadOnlySpan<double> matrix, int p, Span<double> scratch)
     {
-        var u = (double[])matrix.Clone();
+        var u = scratch[..(p * p)];
+        matrix[..(p * p)].CopyTo(u);
         for (var sweep = 0; sweep < 60; sweep++)
         {
             var rotated = false;

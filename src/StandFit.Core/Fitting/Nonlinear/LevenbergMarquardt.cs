@@ -13,6 +13,11 @@ namespace StandFit.Core.Fitting.Nonlinear;
 /// search stops on the relative reduction of the RSS, the relative step or the gradient (see
 /// <see cref="LevenbergMarquardtOptions"/>), or at the iteration limit; a search that did not
 /// converge is reported as such, never as a solution.
+/// <para>
+/// Memory: the search's buffers (Jacobian, QR, trust-region vectors, covariance intermediates) live
+/// in a solver kept by the calling thread and reused by its next fit of the same shape; a fit
+/// allocates its <see cref="NonlinearFitResult"/> and the arrays that result keeps.
+/// </para>
 /// </summary>
 public static class LevenbergMarquardt
 {
@@ -60,7 +65,8 @@ public static class LevenbergMarquardt
         }
 
         // The solver only reads the data: one variable's column and the response are used in place
-        // (no copies); several variables are interleaved row by row.
+        // (no copies); several variables are interleaved row by row into the thread's buffer.
+        var cache = SolverCache.ForThread();
         double[] flat;
         if (v == 1)
         {
@@ -68,7 +74,7 @@ public static class LevenbergMarquardt
         }
         else
         {
-            flat = new double[n * v];
+            flat = cache.Interleaved(n * v);
             for (var k = 0; k < v; k++)
             {
                 var column = variables[k];
@@ -80,14 +86,10 @@ public static class LevenbergMarquardt
         }
 
         var response = ImmutableCollectionsMarshal.AsArray(y)!;
-        var solver = new LevenbergMarquardtSolver(model, flat, response, options, lower, upper);
+        var solver = cache.Solver(n, p, model.GradientScratchLength);
+        solver.Reset(model, flat, response, options, lower, upper);
         var x = start.ToArray();
-        var status = solver.Run(x);
-        if (status.IsConverged() && (lower is null || !OnABound(x, lower, upper!)))
-        {
-            solver.Refine(x, RefinementSteps, precise: false);
-            solver.Refine(x, PreciseRefinementSteps, precise: true);
-        }
+        var status = Search(solver, x, lower, upper);
 
         // Fitted values and residuals at the estimates (the model in double-double, each residual
         // rounded once), and the covariance from a fresh Jacobian there.
@@ -129,7 +131,7 @@ public static class LevenbergMarquardt
         }
 
         var hasIntercept = false;
-        var fullRank = finite && Covariance(solver.Qr, jacobian, n, p, rss / (n - p), covariance, leverage, out condition, out hasIntercept);
+        var fullRank = finite && Covariance(solver, jacobian, n, p, rss / (n - p), covariance, leverage, out condition, out hasIntercept);
         if (status.IsConverged() && !finite)
         {
             status = NonlinearFitStatus.NonFinite;
@@ -149,15 +151,15 @@ public static class LevenbergMarquardt
         }
 
         var reason = Reason(status, solver.Iterations, options, condition);
-        var inputs = ImmutableArray.CreateBuilder<ImmutableArray<double>>(v);
-        foreach (var column in variables)
+        var inputs = new ImmutableArray<double>[v];
+        for (var k = 0; k < v; k++)
         {
-            inputs.Add(column);
+            inputs[k] = variables[k];
         }
 
         return new NonlinearFitResult(
             model,
-            inputs.MoveToImmutable(),
+            ImmutableCollectionsMarshal.AsImmutableArray(inputs),
             start,
             y,
             Wrap(x),
@@ -182,11 +184,12 @@ public static class LevenbergMarquardt
     /// with unit-norm columns, J C^-1 P = Q R: (J'J)^-1 = C^-1 P R^-1 R^-T P' C^-1. False when J is
     /// singular (a zero column or a pivot at or below <see cref="RankTolerance"/> of the largest).
     /// </summary>
-    private static bool Covariance(ReusableQr qr, double[] jacobian, int n, int p, double s2, double[] covariance, double[] leverage, out double condition, out bool hasIntercept)
+    private static bool Covariance(LevenbergMarquardtSolver solver, double[] jacobian, int n, int p, double s2, double[] covariance, double[] leverage, out double condition, out bool hasIntercept)
     {
         condition = double.PositiveInfinity;
         hasIntercept = false;
-        var scale = new double[p];
+        var qr = solver.Qr;
+        var scale = solver.CovarianceScale;
         for (var j = 0; j < p; j++)
         {
             var column = jacobian.AsSpan(j * n, n);
@@ -203,9 +206,9 @@ public static class LevenbergMarquardt
         }
 
         qr.Factor(jacobian);
-        var r = new double[p * p];
+        var r = solver.CovarianceR;
         qr.CopyR(r);
-        condition = SingularValues.ConditionNumber(r, p);
+        condition = SingularValues.ConditionNumber(r, p, solver.CovarianceScratch);
         var largest = Math.Abs(r[0]);
         for (var k = 0; k < p; k++)
         {
@@ -216,7 +219,8 @@ public static class LevenbergMarquardt
         }
 
         // R^-1, upper triangular, row-major.
-        var inverse = new double[p * p];
+        var inverse = solver.CovarianceInverse;
+        Array.Clear(inverse);
         for (var column = 0; column < p; column++)
         {
             for (var i = column; i >= 0; i--)
@@ -323,12 +327,9 @@ public static class LevenbergMarquardt
             throw new ArgumentException("MaxIterations must be 1 or more.", nameof(options));
         }
 
-        foreach (var tolerance in new[] { options.RssTolerance, options.StepTolerance, options.GradientTolerance })
+        if (!ValidTolerance(options.RssTolerance) || !ValidTolerance(options.StepTolerance) || !ValidTolerance(options.GradientTolerance))
         {
-            if (!(tolerance >= 0) || !double.IsFinite(tolerance))
-            {
-                throw new ArgumentException("Tolerances must be finite and 0 or more.", nameof(options));
-            }
+            throw new ArgumentException("Tolerances must be finite and 0 or more.", nameof(options));
         }
 
         if (!(options.InitialStepFactor > 0) || !double.IsFinite(options.InitialStepFactor))
@@ -341,8 +342,9 @@ public static class LevenbergMarquardt
             return (null, null);
         }
 
-        var lower = options.LowerBounds.IsDefault ? Enumerable.Repeat(double.NegativeInfinity, p).ToArray() : options.LowerBounds.ToArray();
-        var upper = options.UpperBounds.IsDefault ? Enumerable.Repeat(double.PositiveInfinity, p).ToArray() : options.UpperBounds.ToArray();
+        // The solver only reads the bounds: the options' own arrays are used in place.
+        var lower = options.LowerBounds.IsDefault ? Enumerable.Repeat(double.NegativeInfinity, p).ToArray() : ImmutableCollectionsMarshal.AsArray(options.LowerBounds)!;
+        var upper = options.UpperBounds.IsDefault ? Enumerable.Repeat(double.PositiveInfinity, p).ToArray() : ImmutableCollectionsMarshal.AsArray(options.UpperBounds)!;
         if (lower.Length != p || upper.Length != p)
         {
             throw new ArgumentException("Bounds need one value per parameter.", nameof(options));
@@ -363,6 +365,27 @@ public static class LevenbergMarquardt
 
         return (lower, upper);
     }
+
+    private static bool ValidTolerance(double tolerance) => tolerance >= 0 && double.IsFinite(tolerance);
+
+    /// <summary>
+    /// The search from <paramref name="x"/> (overwritten with its end point) and, when it converged
+    /// inside the bounds, the Gauss-Newton refinement: the estimates of a fit, without its result.
+    /// </summary>
+    internal static NonlinearFitStatus Search(LevenbergMarquardtSolver solver, double[] x, double[]? lower, double[]? upper)
+    {
+        var status = solver.Run(x);
+        if (status.IsConverged() && (lower is null || !OnABound(x, lower, upper!)))
+        {
+            solver.Refine(x, RefinementSteps, precise: false);
+            solver.Refine(x, PreciseRefinementSteps, precise: true);
+        }
+
+        return status;
+    }
+
+    /// <summary>Checks the options and gives the bounds as the solver reads them (null, null when unbounded).</summary>
+    internal static (double[]? Lower, double[]? Upper) Bounds(LevenbergMarquardtOptions options, ImmutableArray<double> start, int p) => CheckOptions(options, start, p);
 
     private static bool OnABound(double[] x, double[] lower, double[] upper)
     {
@@ -391,4 +414,36 @@ public static class LevenbergMarquardt
     }
 
     private static ImmutableArray<double> Wrap(double[] values) => ImmutableCollectionsMarshal.AsImmutableArray(values);
+
+    /// <summary>One thread's solver (replaced when a fit of another shape comes) and its buffer for interleaved variables.</summary>
+    private sealed class SolverCache
+    {
+        [ThreadStatic]
+        private static SolverCache? t_current;
+
+        private LevenbergMarquardtSolver? _solver;
+        private double[] _interleaved = [];
+
+        public static SolverCache ForThread() => t_current ??= new SolverCache();
+
+        public LevenbergMarquardtSolver Solver(int n, int p, int scratchLength)
+        {
+            if (_solver is null || _solver.Points != n || _solver.ParameterCount != p)
+            {
+                _solver = new LevenbergMarquardtSolver(n, p, scratchLength);
+            }
+
+            return _solver;
+        }
+
+        public double[] Interleaved(int length)
+        {
+            if (_interleaved.Length < length)
+            {
+                _interleaved = new double[length];
+            }
+
+            return _interleaved;
+        }
+    }
 }

@@ -10,7 +10,9 @@ namespace StandFit.Core.Fitting.Nonlinear;
 /// radius by a safeguarded Newton iteration on the secular equation, and every step solved by QR
 /// of the augmented system [J; sqrt(lambda) D] s = [-f; 0]: the Jacobian's pivoted QR reduces it to
 /// [R; sqrt(lambda) D P], whose rows are then eliminated by Givens rotations. Normal equations are
-/// never formed. Every buffer is allocated once per fit.
+/// never formed. Every buffer is allocated once, by the constructor, for fits of n points and p
+/// parameters; <see cref="Reset"/> points the solver at the next fit's data (of the same shape)
+/// without allocating, so one solver serves many fits on one thread (never two at once).
 /// <para>
 /// Bounds are kept by projection: a trial point is projected onto the box; a parameter that sits
 /// on a bound while the descent direction points out of the box is held there for the iteration
@@ -30,15 +32,15 @@ internal sealed class LevenbergMarquardtSolver
     /// <summary>Refinement goes on only while each step is at most this fraction of the one before.</summary>
     private const double RefinementContraction = 0.9;
 
-    private readonly ModelExpression _model;
     private readonly int _n;
     private readonly int _p;
-    private readonly int _variableCount;
-    private readonly double[] _variables;   // n x variableCount, row-major
-    private readonly double[] _y;
-    private readonly LevenbergMarquardtOptions _options;
-    private readonly double[]? _lower;
-    private readonly double[]? _upper;
+    private ModelExpression _model;
+    private int _variableCount;
+    private double[] _variables;   // n x variableCount, row-major
+    private double[] _y;
+    private LevenbergMarquardtOptions _options;
+    private double[]? _lower;
+    private double[]? _upper;
 
     private readonly ReusableQr _qr;
     private readonly double[] _jacobian;    // n x p, column-major: d model_i / d b_j
@@ -58,19 +60,23 @@ internal sealed class LevenbergMarquardtSolver
     private readonly double[] _wa3;
     private readonly double[] _wa4;
     private readonly double[] _rowGradient;
-    private readonly double[] _scratch;
+    private double[] _scratch;
 
     public LevenbergMarquardtSolver(ModelExpression model, double[] variables, double[] y, LevenbergMarquardtOptions options, double[]? lower, double[]? upper)
+        : this(y.Length, model.ParameterCount, model.GradientScratchLength)
     {
-        _model = model;
-        _n = y.Length;
-        _p = model.ParameterCount;
-        _variableCount = model.VariableCount;
-        _variables = variables;
-        _y = y;
-        _options = options;
-        _lower = lower;
-        _upper = upper;
+        Reset(model, variables, y, options, lower, upper);
+    }
+
+    /// <summary>A solver for fits of <paramref name="n"/> points and <paramref name="p"/> parameters, with no data yet (<see cref="Reset"/> gives it).</summary>
+    public LevenbergMarquardtSolver(int n, int p, int scratchLength)
+    {
+        _n = n;
+        _p = p;
+        _model = null!;
+        _variables = [];
+        _y = [];
+        _options = LevenbergMarquardtOptions.Default;
         _qr = new ReusableQr(_n, _p);
         _jacobian = new double[_n * _p];
         _f = new double[_n];
@@ -89,7 +95,54 @@ internal sealed class LevenbergMarquardtSolver
         _wa3 = new double[_p];
         _wa4 = new double[_p];
         _rowGradient = new double[_p];
-        _scratch = new double[model.GradientScratchLength];
+        _scratch = new double[scratchLength];
+        CovarianceScale = new double[p];
+        CovarianceR = new double[p * p];
+        CovarianceInverse = new double[p * p];
+        CovarianceScratch = new double[p * p];
+    }
+
+    /// <summary>Points of the fits this solver serves.</summary>
+    public int Points => _n;
+
+    /// <summary>Parameters of the fits this solver serves.</summary>
+    public int ParameterCount => _p;
+
+    /// <summary>Buffers for the covariance after the search (p, p x p, p x p, p x p), free for the caller.</summary>
+    internal double[] CovarianceScale { get; }
+
+    internal double[] CovarianceR { get; }
+
+    internal double[] CovarianceInverse { get; }
+
+    internal double[] CovarianceScratch { get; }
+
+    /// <summary>
+    /// Points the solver at a new fit of the same n and p: the model, its data (read in place, not
+    /// copied: the caller may overwrite them between fits), options and bounds. Allocates only when
+    /// the model needs more gradient scratch than any model before it.
+    /// </summary>
+    public void Reset(ModelExpression model, double[] variables, double[] y, LevenbergMarquardtOptions options, double[]? lower, double[]? upper)
+    {
+        if (model.ParameterCount != _p || y.Length != _n || variables.Length < _n * model.VariableCount)
+        {
+            throw new ArgumentException("The solver was made for fits of another shape.");
+        }
+
+        _model = model;
+        _variableCount = model.VariableCount;
+        _variables = variables;
+        _y = y;
+        _options = options;
+        _lower = lower;
+        _upper = upper;
+        if (_scratch.Length < model.GradientScratchLength)
+        {
+            _scratch = new double[model.GradientScratchLength];
+        }
+
+        Iterations = 0;
+        Evaluations = 0;
     }
 
     /// <summary>The solver's QR workspace (n x p), free for the caller once the search and refinement are done.</summary>

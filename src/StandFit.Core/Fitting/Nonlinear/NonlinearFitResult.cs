@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.InteropServices;
 using StandFit.Core.Fitting.Expressions;
 
 namespace StandFit.Core.Fitting.Nonlinear;
@@ -37,9 +38,26 @@ public sealed class NonlinearFitResult : IFitResult
         Jacobian = jacobian;
         Leverage = leverage;
         HasIntercept = hasIntercept;
-        Weights = [.. Enumerable.Repeat(1.0, output.Length)];
-        InputMin = [.. inputs.Select(c => c.IsEmpty ? double.NaN : c.Min())];
-        InputMax = [.. inputs.Select(c => c.IsEmpty ? double.NaN : c.Max())];
+        var weights = new double[output.Length];
+        Array.Fill(weights, 1.0);
+        Weights = ImmutableCollectionsMarshal.AsImmutableArray(weights);
+        var inputMin = new double[inputs.Length];
+        var inputMax = new double[inputs.Length];
+        for (var k = 0; k < inputs.Length; k++)
+        {
+            var column = inputs[k].AsSpan();
+            inputMin[k] = column.IsEmpty ? double.NaN : double.PositiveInfinity;
+            inputMax[k] = column.IsEmpty ? double.NaN : double.NegativeInfinity;
+            foreach (var value in column)
+            {
+                // The inputs are finite (the fit refuses anything else).
+                inputMin[k] = Math.Min(inputMin[k], value);
+                inputMax[k] = Math.Max(inputMax[k], value);
+            }
+        }
+
+        InputMin = ImmutableCollectionsMarshal.AsImmutableArray(inputMin);
+        InputMax = ImmutableCollectionsMarshal.AsImmutableArray(inputMax);
         Start = start;
         Output = output;
         Estimates = estimates;
@@ -60,7 +78,13 @@ public sealed class NonlinearFitResult : IFitResult
         RSquared = totalSumOfSquares > 0 ? 1.0 - (residualSumOfSquares / totalSumOfSquares) : double.NaN;
         AdjustedRSquared = 1.0 - ((1.0 - RSquared) * (output.Length - 1) / DegreesOfFreedom);
         var p = model.ParameterCount;
-        StandardErrors = [.. Enumerable.Range(0, p).Select(j => Math.Sqrt(covariance[(j * p) + j]))];
+        var standardErrors = new double[p];
+        for (var j = 0; j < p; j++)
+        {
+            standardErrors[j] = Math.Sqrt(covariance[(j * p) + j]);
+        }
+
+        StandardErrors = ImmutableCollectionsMarshal.AsImmutableArray(standardErrors);
         Correlation = FitResult.CorrelationOf(covariance, p);
     }
 

@@ -69,19 +69,20 @@ public static class NonlinearFitter
     private static NonlinearFitOutcome Rejected(NonlinearFitResult fit, ReasonCode code, string message, SourceLocation where) =>
         new(fit, new Problem(code.Code, message, where));
 
-    private static bool AllFinite(NonlinearFitResult fit)
+    private static bool AllFinite(NonlinearFitResult fit) =>
+        AllFinite(fit.Estimates) && AllFinite(fit.Covariance) && AllFinite(fit.Residuals) && AllFinite(fit.Fitted) && AllFinite(fit.Leverage)
+        && double.IsFinite(fit.ResidualSd) && double.IsFinite(fit.ConditionNumber);
+
+    private static bool AllFinite(System.Collections.Immutable.ImmutableArray<double> values)
     {
-        foreach (var values in new[] { fit.Estimates, fit.Covariance, fit.Residuals, fit.Fitted, fit.Leverage })
+        foreach (var v in values)
         {
-            foreach (var v in values)
+            if (!double.IsFinite(v))
             {
-                if (!double.IsFinite(v))
-                {
-                    return false;
-                }
+                return false;
             }
         }
 
-        return double.IsFinite(fit.ResidualSd) && double.IsFinite(fit.ConditionNumber);
+        return true;
     }
 }
