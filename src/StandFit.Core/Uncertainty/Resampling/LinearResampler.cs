@@ -249,7 +249,8 @@ public sealed class LinearResampler
 
     private BootstrapCounts Pairs(int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices)
     {
-        Span<double> acc = stackalloc double[_stride];
+        // The packs in vectors for p <= 4 (stride at most 16); counts and dot products beyond.
+        Span<double> acc = stackalloc double[_strideV];
         Span<double> work = stackalloc double[(_p * _p) + _p];
         Span<double> figures = stackalloc double[_f];
         var drawn = new int[_n];
@@ -258,13 +259,11 @@ public sealed class LinearResampler
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
         int good = 0, degenerate = 0, deficient = 0, nonFinite = 0;
         var vector = _strideV <= 16;
-        Span<double> accV = stackalloc double[_strideV];
         for (var r = 0; r < resamples; r++)
         {
             if (vector)
             {
-                DrawAndAccumulate(ref rng, drawn, threshold, accV);
-                accV[.._stride].CopyTo(acc);
+                DrawAndAccumulate(ref rng, drawn, threshold, acc);
             }
             else
             {
@@ -320,26 +319,24 @@ public sealed class LinearResampler
     }
 
     /// <summary>
-    /// <see cref="Xoshiro256StarStar.FillBelow"/> and <see cref="AccumulateDrawn"/> in one loop (the
-    /// same draws, the same sums in the same order): each index is drawn and its pack added at once,
-    /// so the generator's and the additions' dependency chains overlap.
+    /// <see cref="Xoshiro256StarStar.FillBelow"/> and the sum of the drawn points' packs in one loop:
+    /// the same draws (two 32-bit words per 64-bit step, the high half first, each by Lemire's
+    /// multiply-and-reject; a low half left at the end is discarded) in <paramref name="drawn"/>, and
+    /// each accepted point's pack added at once, so the generator's and the additions' dependency
+    /// chains overlap. The packs go one to four vectors of four components at a time; even and odd
+    /// draws go to two sets of accumulators (to halve the chains of additions), swapped after every
+    /// draw and added at the end. A fixed order: the same bits on every machine and thread.
     /// </summary>
     private void DrawAndAccumulate(ref Xoshiro256StarStar rng, int[] drawn, uint threshold, Span<double> acc)
     {
-        if (_strideV > 8)
-        {
-            rng.FillBelow(drawn, (uint)_n, threshold);
-            AccumulateDrawn(drawn, acc);
-            return;
-        }
-
         rng.Save(out var s0, out var s1, out var s2, out var s3);
         ref var rows = ref MemoryMarshal.GetArrayDataReference(_packRows);
         ref var indices = ref MemoryMarshal.GetArrayDataReference(drawn);
         var bound = (ulong)_n;
         var sv = _strideV;
-        var two = sv == 8;
-        Vector256<double> a0 = default, a1 = default, b0 = default, b1 = default;
+        var vectors = sv / 4;
+        Vector256<double> a0 = default, a1 = default, a2 = default, a3 = default;
+        Vector256<double> b0 = default, b1 = default, b2 = default, b3 = default;
         var k = 0;
         var length = drawn.Length;
         while (k < length)
@@ -357,126 +354,42 @@ public sealed class LinearResampler
                 s3 = BitOperations.RotateLeft(s3, 45);
             }
 
-            var m = (x >> 32) * bound;
-            if ((uint)m >= threshold)
+            // The high word, then (shifted up) the low word.
+            for (var half = 0; half < 2 && k < length; half++)
             {
+                var m = (x >> 32) * bound;
+                x <<= 32;
+                if ((uint)m < threshold)
+                {
+                    continue;
+                }
+
                 var i = (int)(m >> 32);
-                Unsafe.Add(ref indices, k) = i;
+                Unsafe.Add(ref indices, k++) = i;
                 ref var row = ref Unsafe.Add(ref rows, i * sv);
-                if ((k & 1) == 0)
+                a0 += Vector256.LoadUnsafe(ref row);
+                (a0, b0) = (b0, a0);
+                if (vectors > 1)
                 {
-                    a0 += Vector256.LoadUnsafe(ref row);
-                    if (two)
+                    a1 += Vector256.LoadUnsafe(ref row, 4);
+                    (a1, b1) = (b1, a1);
+                    if (vectors > 2)
                     {
-                        a1 += Vector256.LoadUnsafe(ref row, 4);
+                        a2 += Vector256.LoadUnsafe(ref row, 8);
+                        (a2, b2) = (b2, a2);
+                        if (vectors > 3)
+                        {
+                            a3 += Vector256.LoadUnsafe(ref row, 12);
+                            (a3, b3) = (b3, a3);
+                        }
                     }
                 }
-                else
-                {
-                    b0 += Vector256.LoadUnsafe(ref row);
-                    if (two)
-                    {
-                        b1 += Vector256.LoadUnsafe(ref row, 4);
-                    }
-                }
-
-                if (++k == length)
-                {
-                    break;
-                }
-            }
-
-            m = (x & 0xFFFFFFFFUL) * bound;
-            if ((uint)m >= threshold)
-            {
-                var i = (int)(m >> 32);
-                Unsafe.Add(ref indices, k) = i;
-                ref var row = ref Unsafe.Add(ref rows, i * sv);
-                if ((k & 1) == 0)
-                {
-                    a0 += Vector256.LoadUnsafe(ref row);
-                    if (two)
-                    {
-                        a1 += Vector256.LoadUnsafe(ref row, 4);
-                    }
-                }
-                else
-                {
-                    b0 += Vector256.LoadUnsafe(ref row);
-                    if (two)
-                    {
-                        b1 += Vector256.LoadUnsafe(ref row, 4);
-                    }
-                }
-
-                k++;
             }
         }
 
         rng.Restore(s0, s1, s2, s3);
-        ref var target = ref MemoryMarshal.GetReference(acc);
-        (a0 + b0).StoreUnsafe(ref target);
-        if (two)
-        {
-            (a1 + b1).StoreUnsafe(ref target, 4);
-        }
-    }
 
-    /// <summary>
-    /// acc = sum over the drawn points of their packs, four components per vector; even and odd draws
-    /// go to two accumulators (to break the chain of additions), added at the end. A fixed order: the
-    /// same bits on every machine and thread.
-    /// </summary>
-    private void AccumulateDrawn(int[] drawn, Span<double> acc)
-    {
-        ref var rows = ref MemoryMarshal.GetArrayDataReference(_packRows);
-        var sv = _strideV;
-        var vectors = sv / 4;
-        Vector256<double> a0 = default, a1 = default, a2 = default, a3 = default;
-        Vector256<double> b0 = default, b1 = default, b2 = default, b3 = default;
-        var n = drawn.Length;
-        var j = 0;
-        for (; j + 1 < n; j += 2)
-        {
-            ref var ra = ref Unsafe.Add(ref rows, drawn[j] * sv);
-            ref var rb = ref Unsafe.Add(ref rows, drawn[j + 1] * sv);
-            a0 += Vector256.LoadUnsafe(ref ra);
-            b0 += Vector256.LoadUnsafe(ref rb);
-            if (vectors > 1)
-            {
-                a1 += Vector256.LoadUnsafe(ref ra, 4);
-                b1 += Vector256.LoadUnsafe(ref rb, 4);
-                if (vectors > 2)
-                {
-                    a2 += Vector256.LoadUnsafe(ref ra, 8);
-                    b2 += Vector256.LoadUnsafe(ref rb, 8);
-                    if (vectors > 3)
-                    {
-                        a3 += Vector256.LoadUnsafe(ref ra, 12);
-                        b3 += Vector256.LoadUnsafe(ref rb, 12);
-                    }
-                }
-            }
-        }
-
-        if (j < n)
-        {
-            ref var ra = ref Unsafe.Add(ref rows, drawn[j] * sv);
-            a0 += Vector256.LoadUnsafe(ref ra);
-            if (vectors > 1)
-            {
-                a1 += Vector256.LoadUnsafe(ref ra, 4);
-                if (vectors > 2)
-                {
-                    a2 += Vector256.LoadUnsafe(ref ra, 8);
-                    if (vectors > 3)
-                    {
-                        a3 += Vector256.LoadUnsafe(ref ra, 12);
-                    }
-                }
-            }
-        }
-
+        // Even draws' sum plus odd draws' sum (IEEE addition commutes, so which set holds which does not matter).
         ref var target = ref MemoryMarshal.GetReference(acc);
         (a0 + b0).StoreUnsafe(ref target);
         if (vectors > 1)
@@ -637,6 +550,11 @@ public sealed class LinearResampler
             return Solve2(acc, figures);
         }
 
+        if (p == 3)
+        {
+            return Solve3(acc, figures);
+        }
+
         var l = work[..(p * p)];
         var a = work.Slice(p * p, p);
         var t = 0;
@@ -738,6 +656,53 @@ public sealed class LinearResampler
         for (var k = 0; k < _f; k++)
         {
             var value = _estimates[k] + (_figureMap[k * 2] * a0) + (_figureMap[(k * 2) + 1] * a1);
+            figures[k] = value;
+            finite &= double.IsFinite(value);
+        }
+
+        return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
+    }
+
+    /// <summary>
+    /// The 3 x 3 case of <see cref="Solve"/>, written out as an LDL' factorisation: the same pivots
+    /// d_j as Cholesky's squared diagonal, tested against the same tolerance, without square roots.
+    /// </summary>
+    private ResampleFailure Solve3(ReadOnlySpan<double> acc, Span<double> figures)
+    {
+        double g00 = acc[0], g01 = acc[1], g02 = acc[2], g11 = acc[3], g12 = acc[4], g22 = acc[5];
+        double c0 = acc[6], c1 = acc[7], c2 = acc[8];
+        if (!(g00 > PivotTolerance * g00))
+        {
+            return ResampleFailure.RankDeficient;
+        }
+
+        var inverse0 = 1.0 / g00;
+        var l10 = g01 * inverse0;
+        var l20 = g02 * inverse0;
+        var d1 = g11 - (l10 * g01);
+        if (!(d1 > PivotTolerance * g11))
+        {
+            return ResampleFailure.RankDeficient;
+        }
+
+        var e12 = g12 - (l20 * g01);
+        var inverse1 = 1.0 / d1;
+        var l21 = e12 * inverse1;
+        var d2 = g22 - (l20 * g02) - (l21 * e12);
+        if (!(d2 > PivotTolerance * g22))
+        {
+            return ResampleFailure.RankDeficient;
+        }
+
+        var y1 = c1 - (l10 * c0);
+        var y2 = c2 - (l20 * c0) - (l21 * y1);
+        var a2 = y2 / d2;
+        var a1 = (y1 * inverse1) - (l21 * a2);
+        var a0 = (c0 * inverse0) - (l10 * a1) - (l20 * a2);
+        var finite = true;
+        for (var k = 0; k < _f; k++)
+        {
+            var value = _estimates[k] + (_figureMap[k * 3] * a0) + (_figureMap[(k * 3) + 1] * a1) + (_figureMap[(k * 3) + 2] * a2);
             figures[k] = value;
             finite &= double.IsFinite(value);
         }
