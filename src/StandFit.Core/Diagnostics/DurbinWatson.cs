@@ -95,6 +95,116 @@ public static class DurbinWatson
         return new DurbinWatsonResult(d, LowerTail(eigenvalues, d), DiagnosticMethods.Exact, eigenvalues.Length);
     }
 
+    /// <summary>
+    /// Durbin-Watson within legs (the per-leg order): d_w = sum over the legs of sum (e_t - e_(t-1))^2
+    /// between neighbours of one leg in acquisition order, over sum e^2 of all points: the junction
+    /// between two legs (the turn at the top of an up/down sweep) is not a difference. With one leg
+    /// it is the acquisition-order statistic. Exact one-sided p as for the ordinary test, with A the
+    /// within-leg difference matrix D_w'D_w: P(D &lt;= d) = P(sum (mu_i - d) chi2_1 &lt;= 0) over the
+    /// n - p eigenvalues mu_i of M A M on the residual space. The non-zero ones are those of
+    /// C = D_w M D_w' = T_w - G G' (T_w block tridiagonal, G = D_w Q), taken densely (O(n^3), so only
+    /// when a gate asks for this order); the rest are 0 (a leg-constant vector can lie in the
+    /// residual space) and are kept, with weight -d.
+    /// </summary>
+    internal static DurbinWatsonResult WithinLegs(ReadOnlySpan<double> residuals, DesignBasis design, int[][] legs)
+    {
+        var n = residuals.Length;
+        var p = design.Columns;
+        var m = 0;
+        foreach (var leg in legs)
+        {
+            m += Math.Max(0, leg.Length - 1);
+        }
+
+        if (n < 3 || n <= p || m < 1)
+        {
+            return DurbinWatsonResult.NotApplicable;
+        }
+
+        double numerator = 0, denominator = 0;
+        foreach (var e in residuals)
+        {
+            denominator += e * e;
+        }
+
+        foreach (var leg in legs)
+        {
+            for (var t = 1; t < leg.Length; t++)
+            {
+                var diff = residuals[leg[t]] - residuals[leg[t - 1]];
+                numerator += diff * diff;
+            }
+        }
+
+        if (!(denominator > 0))
+        {
+            return DurbinWatsonResult.NotApplicable;
+        }
+
+        var d = numerator / denominator;
+
+        // G = D_w Q (m x p, row-major) and C = T_w - G G' (m x m, row-major).
+        var g = new double[m * p];
+        var c = new double[m * m];
+        var row = 0;
+        foreach (var leg in legs)
+        {
+            var first = row;
+            for (var t = 1; t < leg.Length; t++, row++)
+            {
+                for (var j = 0; j < p; j++)
+                {
+                    g[(row * p) + j] = design[leg[t], j] - design[leg[t - 1], j];
+                }
+
+                c[(row * m) + row] = 2.0;
+                if (row > first)
+                {
+                    c[(row * m) + row - 1] = -1.0;
+                    c[((row - 1) * m) + row] = -1.0;
+                }
+            }
+        }
+
+        for (var a = 0; a < m; a++)
+        {
+            for (var b = 0; b <= a; b++)
+            {
+                var sum = 0.0;
+                for (var j = 0; j < p; j++)
+                {
+                    sum += g[(a * p) + j] * g[(b * p) + j];
+                }
+
+                c[(a * m) + b] -= sum;
+                if (b != a)
+                {
+                    c[(b * m) + a] -= sum;
+                }
+            }
+        }
+
+        var values = SymmetricEigen.Values(c, m);
+        var nonZero = 0;
+        foreach (var v in values)
+        {
+            nonZero += v > EigenvalueFloor ? 1 : 0;
+        }
+
+        var count = Math.Max(nonZero, n - p);
+        var eigenvalues = new double[count];
+        var k = 0;
+        foreach (var v in values)
+        {
+            if (v > EigenvalueFloor)
+            {
+                eigenvalues[k++] = v;
+            }
+        }
+
+        return new DurbinWatsonResult(d, LowerTail(eigenvalues, d), DiagnosticMethods.Exact, count);
+    }
+
     /// <summary>P(D &lt;= d) for a design with an intercept, by the integral without eigenvalues (NaN where it does not apply; a check for the tests).</summary>
     internal static double LowerTailWithoutEigenvalues(DesignBasis design, int[]? order, double d, bool vectorised)
     {

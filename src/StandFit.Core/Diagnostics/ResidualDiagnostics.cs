@@ -14,6 +14,12 @@ public sealed record DiagnosticsOptions
 
     /// <summary>The part's nominal transfer curve, for the errors against it; null: those figures are not computed.</summary>
     public NominalLine? Nominal { get; init; }
+
+    /// <summary>
+    /// The order a Durbin-Watson gate takes (<c>gates.durbin_watson.order</c>); the acquisition-order
+    /// test is always computed, another order's beside it when asked for here.
+    /// </summary>
+    public ResidualOrder DurbinWatsonOrder { get; init; } = ResidualOrder.Acquisition;
 }
 
 /// <summary>
@@ -39,6 +45,23 @@ public sealed record ResidualDiagnostics(
     ResidualHistogram Histogram,
     FiguresOfMerit? Merit)
 {
+    /// <summary>The runs test on each leg in acquisition order, and the legs combined (Šidák).</summary>
+    public PerLegRunsResult RunsPerLeg { get; init; } = PerLegRunsResult.NotApplicable;
+
+    /// <summary>Durbin-Watson on the residuals in stimulus order; computed only when <see cref="DiagnosticsOptions.DurbinWatsonOrder"/> asks for it.</summary>
+    public DurbinWatsonResult? DurbinWatsonByStimulus { get; init; }
+
+    /// <summary>Durbin-Watson within legs (<see cref="Diagnostics.DurbinWatson.WithinLegs"/>); computed only when <see cref="DiagnosticsOptions.DurbinWatsonOrder"/> asks for it.</summary>
+    public DurbinWatsonResult? DurbinWatsonPerLeg { get; init; }
+
+    /// <summary>The Durbin-Watson test in <paramref name="order"/> (a bug when that order was not computed).</summary>
+    public DurbinWatsonResult DurbinWatsonIn(ResidualOrder order) => order switch
+    {
+        ResidualOrder.Acquisition => DurbinWatson,
+        ResidualOrder.Stimulus => DurbinWatsonByStimulus ?? throw new InvalidOperationException("The stimulus-order Durbin-Watson test was not computed: set DiagnosticsOptions.DurbinWatsonOrder."),
+        _ => DurbinWatsonPerLeg ?? throw new InvalidOperationException("The per-leg Durbin-Watson test was not computed: set DiagnosticsOptions.DurbinWatsonOrder."),
+    };
+
     /// <summary>All diagnostics of <paramref name="fit"/>; <paramref name="legs"/> are the sweep's (one per point).</summary>
     public static ResidualDiagnostics Compute(IFitResult fit, ReadOnlySpan<Leg> legs, DiagnosticsOptions options)
     {
@@ -62,6 +85,15 @@ public sealed record ResidualDiagnostics(
             Influence.OutlierTest(fit, points),
             ResidualHistogram.FreedmanDiaconis(residuals),
             // The figures of merit describe an output against one stimulus: none for a model of several inputs.
-            fit.InputCount == 1 ? FiguresOfMerit.Compute(fit.Stimulus.AsSpan(), fit.Output.AsSpan(), legs, groups, fit.ResidualSd, options.Nominal) : null);
+            fit.InputCount == 1 ? FiguresOfMerit.Compute(fit.Stimulus.AsSpan(), fit.Output.AsSpan(), legs, groups, fit.ResidualSd, options.Nominal) : null)
+        {
+            RunsPerLeg = RunsTest.PerLeg(residuals, legs),
+            DurbinWatsonByStimulus = options.DurbinWatsonOrder == ResidualOrder.Stimulus
+                ? Diagnostics.DurbinWatson.Compute(residuals, design, ResidualOrders.ByStimulus(fit.Stimulus.AsSpan()))
+                : null,
+            DurbinWatsonPerLeg = options.DurbinWatsonOrder == ResidualOrder.PerLeg
+                ? Diagnostics.DurbinWatson.WithinLegs(residuals, design, ResidualOrders.Legs(legs))
+                : null,
+        };
     }
 }

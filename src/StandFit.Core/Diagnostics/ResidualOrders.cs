@@ -43,6 +43,26 @@ public static class ResidualOrders
         return order;
     }
 
+    /// <summary>
+    /// The legs of a sweep, each its points' indices in acquisition order: the up leg, then the down
+    /// leg, then points without a leg label; legs without points are left out. A sweep without leg
+    /// labels is one leg, its acquisition order.
+    /// </summary>
+    public static int[][] Legs(ReadOnlySpan<Leg> legs)
+    {
+        var result = new List<int[]>(3);
+        foreach (var leg in (ReadOnlySpan<Leg>)[Leg.Up, Leg.Down, Leg.Unknown])
+        {
+            var indices = OfLeg(legs, leg);
+            if (indices.Length > 0)
+            {
+                result.Add(indices);
+            }
+        }
+
+        return [.. result];
+    }
+
     /// <summary>Point indices sorted by stimulus; ties keep acquisition order (a stable sort).</summary>
     public static int[] ByStimulus(ReadOnlySpan<double> stimulus)
     {
@@ -71,4 +91,40 @@ public static class ResidualOrders
             return c != 0 ? c : Index.CompareTo(other.Index);
         }
     }
+}
+
+/// <summary>The order in which a gate takes the residuals (<c>gates.runs_test.order</c>, <c>gates.durbin_watson.order</c>).</summary>
+public enum ResidualOrder
+{
+    /// <summary>Sorted by stimulus, ties in acquisition order: curvature shows as runs of one sign.</summary>
+    Stimulus,
+
+    /// <summary>The order the points were taken: drift and autocorrelation in time.</summary>
+    Acquisition,
+
+    /// <summary>Each leg (approach direction) on its own, in acquisition order; the legs' results combined (docs/diagnostics.md).</summary>
+    PerLeg,
+}
+
+/// <summary>The names of <see cref="ResidualOrder"/> as recipes and outputs write them.</summary>
+public static class ResidualOrderNames
+{
+    public const string Stimulus = "stimulus";
+    public const string Acquisition = "acquisition";
+    public const string PerLeg = "per-leg";
+
+    public static string Name(ResidualOrder order) => order switch
+    {
+        ResidualOrder.Stimulus => Stimulus,
+        ResidualOrder.Acquisition => Acquisition,
+        _ => PerLeg,
+    };
+
+    public static ResidualOrder? Parse(string text) => text switch
+    {
+        Stimulus => ResidualOrder.Stimulus,
+        Acquisition => ResidualOrder.Acquisition,
+        PerLeg => ResidualOrder.PerLeg,
+        _ => null,
+    };
 }

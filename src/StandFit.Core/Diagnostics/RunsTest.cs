@@ -1,5 +1,7 @@
+using System.Collections.Immutable;
 using MathNet.Numerics;
 using MathNet.Numerics.Distributions;
+using StandFit.Core.Ingest;
 
 namespace StandFit.Core.Diagnostics;
 
@@ -23,6 +25,42 @@ public enum RunsMethod
 public sealed record RunsTestResult(int Runs, int Positive, int Negative, double Expected, double Variance, double Z, double P, RunsMethod Method)
 {
     public bool IsApplicable => Method != RunsMethod.NotApplicable;
+}
+
+/// <summary>
+/// The runs test on each leg of a sweep on its own (each leg's residuals in acquisition order), and
+/// the legs combined: <see cref="P"/> is Šidák's adjustment of the smallest leg p-value,
+/// 1 - (1 - min p)^k over the k legs where the test applies (exact for independent legs, and never
+/// below the smallest p). Not applicable when it applies to no leg.
+/// </summary>
+public sealed record PerLegRunsResult(ImmutableArray<Leg> Legs, ImmutableArray<RunsTestResult> Results, double MinP, double P, int Applicable)
+{
+    public bool IsApplicable => Applicable > 0;
+
+    public static PerLegRunsResult NotApplicable { get; } = new([], [], double.NaN, double.NaN, 0);
+
+    /// <summary>The test on one leg, or null when the sweep has no such leg.</summary>
+    public RunsTestResult? Of(Leg leg)
+    {
+        var i = Legs.IndexOf(leg);
+        return i < 0 ? null : Results[i];
+    }
+
+    /// <summary>Šidák's adjustment of the smallest of <paramref name="k"/> p-values: 1 - (1 - p)^k, computed without cancellation.</summary>
+    public static double Sidak(double minP, int k)
+    {
+        if (minP >= 1)
+        {
+            return 1.0;
+        }
+
+        // log(1 - p) and 1 - exp(q) by their series where the direct forms would cancel (terms past
+        // the third are below 1e-16 relative for |x| < 1e-4).
+        var log = minP < 1e-4 ? -minP * (1 + (minP * ((1.0 / 2) + (minP / 3)))) : Math.Log(1 - minP);
+        var q = k * log;
+        var adjusted = q > -1e-4 ? -q * (1 + (q * ((1.0 / 2) + (q / 6)))) : 1 - Math.Exp(q);
+        return Math.Min(1.0, adjusted);
+    }
 }
 
 /// <summary>
@@ -65,6 +103,31 @@ public static class RunsTest
         }
 
         return FromCounts(runs, positive, negative);
+    }
+
+    /// <summary>The runs test of each leg of <paramref name="values"/> (one leg label per value; see <see cref="ResidualOrders.Legs"/>) and the legs combined.</summary>
+    public static PerLegRunsResult PerLeg(ReadOnlySpan<double> values, ReadOnlySpan<Leg> legs)
+    {
+        var segments = ResidualOrders.Legs(legs);
+        var names = ImmutableArray.CreateBuilder<Leg>(segments.Length);
+        var results = ImmutableArray.CreateBuilder<RunsTestResult>(segments.Length);
+        var minP = 1.0;
+        var applicable = 0;
+        foreach (var segment in segments)
+        {
+            var result = Compute(values, segment);
+            names.Add(legs[segment[0]]);
+            results.Add(result);
+            if (result.IsApplicable)
+            {
+                applicable++;
+                minP = Math.Min(minP, result.P);
+            }
+        }
+
+        return applicable == 0
+            ? new PerLegRunsResult(names.MoveToImmutable(), results.MoveToImmutable(), double.NaN, double.NaN, 0)
+            : new PerLegRunsResult(names.MoveToImmutable(), results.MoveToImmutable(), minP, PerLegRunsResult.Sidak(minP, applicable), applicable);
     }
 
     /// <summary>The test from the counts: <paramref name="runs"/> runs among n1 + n2 signs.</summary>

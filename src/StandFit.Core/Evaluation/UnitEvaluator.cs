@@ -120,7 +120,7 @@ public static class UnitEvaluator
 
         if (recipe.RunsGate is { } gate)
         {
-            findings.Add(gate.Judge(runs));
+            findings.Add(gate.Judge(runs, diagnostics));
         }
 
         foreach (var diagnosticGate in recipe.DiagnosticGates)

@@ -40,8 +40,13 @@ public enum NormalityTest
 /// </summary>
 public sealed record DiagnosticGate
 {
-    public DiagnosticGate(DiagnosticGateKind kind, double pValueFloor, NormalityTest normality = NormalityTest.ShapiroWilk)
+    public DiagnosticGate(DiagnosticGateKind kind, double pValueFloor, NormalityTest normality = NormalityTest.ShapiroWilk, ResidualOrder order = ResidualOrder.Acquisition)
     {
+        if (kind != DiagnosticGateKind.DurbinWatson && order != ResidualOrder.Acquisition)
+        {
+            throw new ArgumentException("Only the Durbin-Watson gate takes an order.", nameof(order));
+        }
+
         if (!(pValueFloor is > 0 and < 0.5))
         {
             throw new ArgumentOutOfRangeException(nameof(pValueFloor), pValueFloor, "A p-value floor lies between 0 and 0.5.");
@@ -50,7 +55,11 @@ public sealed record DiagnosticGate
         Kind = kind;
         PValueFloor = pValueFloor;
         Normality = normality;
+        Order = order;
     }
+
+    /// <summary>For a Durbin-Watson gate, the order its residuals are taken in (acquisition by default).</summary>
+    public ResidualOrder Order { get; }
 
     public DiagnosticGateKind Kind { get; }
 
@@ -62,7 +71,7 @@ public sealed record DiagnosticGate
     /// <summary>The p-value this gate judges, or null when the diagnostic does not apply to the fit.</summary>
     public double? PValue(ResidualDiagnostics d) => Kind switch
     {
-        DiagnosticGateKind.DurbinWatson => d.DurbinWatson.IsApplicable ? d.DurbinWatson.P : null,
+        DiagnosticGateKind.DurbinWatson => d.DurbinWatsonIn(Order) is { IsApplicable: true } dw ? dw.P : null,
         DiagnosticGateKind.LackOfFit => d.LackOfFit.IsApplicable ? d.LackOfFit.P : null,
         DiagnosticGateKind.Curvature => d.Curvature.IsApplicable ? d.Curvature.P : null,
         DiagnosticGateKind.Normality when Normality == NormalityTest.ShapiroWilk => d.ShapiroWilk.IsApplicable ? d.ShapiroWilk.P : null,
@@ -84,7 +93,7 @@ public sealed record DiagnosticGate
         var code = below ? fail : ok;
         var sentence = Kind switch
         {
-            DiagnosticGateKind.DurbinWatson => Messages.DurbinWatsonFinding(d.DurbinWatson.Statistic, p, PValueFloor, below),
+            DiagnosticGateKind.DurbinWatson => Messages.DurbinWatsonFinding(d.DurbinWatsonIn(Order).Statistic, p, PValueFloor, below, OrderPhrase),
             DiagnosticGateKind.LackOfFit => Messages.LackOfFitFinding(d.LackOfFit.F, d.LackOfFit.LackDf, d.LackOfFit.PureErrorDf, d.SetPoints.Count, p, PValueFloor, below),
             DiagnosticGateKind.Curvature => Messages.CurvatureFinding(d.Curvature.NextPower, d.Curvature.F, d.Curvature.Df, p, PValueFloor, below),
             DiagnosticGateKind.Normality when Normality == NormalityTest.ShapiroWilk => Messages.NormalityFinding("Shapiro-Wilk", "W", d.ShapiroWilk.W, p, PValueFloor, below),
@@ -101,6 +110,13 @@ public sealed record DiagnosticGate
         };
         return new Finding(code.Code, code.Kind, sentence);
     }
+
+    private string OrderPhrase => Order switch
+    {
+        ResidualOrder.Stimulus => "in stimulus order",
+        ResidualOrder.PerLeg => "within legs (per-leg order)",
+        _ => "in acquisition order",
+    };
 
     private (ReasonCode Ok, ReasonCode Fail, ReasonCode NotApplicable, string Test) Codes() => Kind switch
     {

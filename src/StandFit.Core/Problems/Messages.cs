@@ -290,10 +290,25 @@ public static class Messages
         };
     }
 
-    public static string RunsFinding(int runs, int plus, int minus, double expected, double z, double p, string method, double floor, bool structure) =>
+    public static string RunsFinding(int runs, int plus, int minus, double expected, double z, double p, string method, double floor, bool structure, string order = "stimulus order") =>
         structure
-            ? F($"runs test in stimulus order: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is below the floor {Numbers.Format(floor)}: the residuals have structure")
-            : F($"runs test in stimulus order: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is at or above the floor {Numbers.Format(floor)}");
+            ? F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is below the floor {Numbers.Format(floor)}: the residuals have structure")
+            : F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is at or above the floor {Numbers.Format(floor)}");
+
+    /// <summary>The per-leg runs gate: each leg's runs and p, then the Šidák-combined p judged.</summary>
+    public static string RunsPerLegFinding(string legs, int tested, double minP, double p, double floor, bool structure) =>
+        structure
+            ? F($"runs test per leg ({legs}): smallest p = {Numbers.Format(minP, 3)} of {tested} leg(s), Šidák-adjusted p = {Numbers.Format(p, 3)} is below the floor {Numbers.Format(floor)}: the residuals have structure within a leg")
+            : F($"runs test per leg ({legs}): smallest p = {Numbers.Format(minP, 3)} of {tested} leg(s), Šidák-adjusted p = {Numbers.Format(p, 3)} is at or above the floor {Numbers.Format(floor)}");
+
+    /// <summary>One leg's part of <see cref="RunsPerLegFinding"/>.</summary>
+    public static string RunsLeg(string leg, int runs, int plus, int minus, double p) =>
+        F($"{leg}: {runs} runs of {plus}+/{minus}-, p = {Numbers.Format(p, 3)}");
+
+    /// <summary>One leg's part of <see cref="RunsPerLegFinding"/> where the test does not apply.</summary>
+    public static string RunsLegNotApplicable(string leg, int plus, int minus) => F($"{leg}: not applicable ({plus}+/{minus}-)");
+
+    public static string RunsPerLegNotApplicable() => F($"runs test per leg not applicable: no leg has residuals of both signs among at least three");
 
     public static string RunsNotApplicable(int plus, int minus) => F($"runs test not applicable: {plus} positive and {minus} negative residuals");
 
@@ -350,10 +365,10 @@ public static class Messages
     private static string Floor(double p, double floor, bool below) =>
         below ? F($"p = {Numbers.Format(p, 3)} is below the floor {Numbers.Format(floor)}") : F($"p = {Numbers.Format(p, 3)} is at or above the floor {Numbers.Format(floor)}");
 
-    public static string DurbinWatsonFinding(double d, double p, double floor, bool below) =>
+    public static string DurbinWatsonFinding(double d, double p, double floor, bool below, string order = "in acquisition order") =>
         below
-            ? F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals in acquisition order, exact one-sided {Floor(p, floor, below)}: neighbouring residuals are alike (a drift, or a trend the model misses); check the stand and the model")
-            : F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals in acquisition order, exact one-sided {Floor(p, floor, below)}");
+            ? F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals {order}, exact one-sided {Floor(p, floor, below)}: neighbouring residuals are alike (a drift, or a trend the model misses); check the stand and the model")
+            : F($"Durbin-Watson d = {Numbers.Format(d, 4)} on the residuals {order}, exact one-sided {Floor(p, floor, below)}");
 
     public static string LackOfFitFinding(double f, int lackDf, int pureDf, int setPoints, double p, double floor, bool below) =>
         below

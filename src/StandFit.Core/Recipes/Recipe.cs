@@ -152,7 +152,12 @@ public sealed class Recipe
     public Merit.NominalLine? Nominal { get; init; }
 
     /// <summary>The options the residual diagnostics take from this recipe.</summary>
-    public Diagnostics.DiagnosticsOptions DiagnosticsOptions => new() { SetPointTolerance = SetPointTolerance, Nominal = Nominal };
+    public Diagnostics.DiagnosticsOptions DiagnosticsOptions => new()
+    {
+        SetPointTolerance = SetPointTolerance,
+        Nominal = Nominal,
+        DurbinWatsonOrder = DiagnosticGates.FirstOrDefault(g => g.Kind == DiagnosticGateKind.DurbinWatson)?.Order ?? Diagnostics.ResidualOrder.Acquisition,
+    };
 
     /// <summary>The data-quality gates checked before any fit.</summary>
     public SweepExpectations Sweep { get; init; } = SweepExpectations.None;

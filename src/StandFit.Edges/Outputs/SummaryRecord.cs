@@ -167,7 +167,7 @@ public sealed class CurveRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 7;
+    public const int CurrentSchemaVersion = 8;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -330,11 +330,49 @@ public sealed class SummaryRecord
     [JsonPropertyName("runs_acquisition_p")]
     public double? RunsAcquisitionP { get; set; }
 
+    // Residual orders of the gates and the per-leg runs test (schema 8).
+
+    /// <summary>The order the recipe's runs gate takes (stimulus, acquisition or per-leg); null without a runs gate.</summary>
+    [JsonPropertyName("runs_order")]
+    public string? RunsOrder { get; set; }
+
+    [JsonPropertyName("runs_up_count")]
+    public int? RunsUpCount { get; set; }
+
+    [JsonPropertyName("runs_up_p")]
+    public double? RunsUpP { get; set; }
+
+    [JsonPropertyName("runs_down_count")]
+    public int? RunsDownCount { get; set; }
+
+    [JsonPropertyName("runs_down_p")]
+    public double? RunsDownP { get; set; }
+
+    /// <summary>The legs combined: Šidák's adjustment of the smallest leg p-value.</summary>
+    [JsonPropertyName("runs_per_leg_p")]
+    public double? RunsPerLegP { get; set; }
+
     [JsonPropertyName("dw")]
     public double? DurbinWatson { get; set; }
 
     [JsonPropertyName("dw_p")]
     public double? DurbinWatsonP { get; set; }
+
+    /// <summary>The order the recipe's Durbin-Watson gate takes; null without that gate (schema 8).</summary>
+    [JsonPropertyName("dw_order")]
+    public string? DurbinWatsonOrder { get; set; }
+
+    [JsonPropertyName("dw_stimulus")]
+    public double? DurbinWatsonStimulus { get; set; }
+
+    [JsonPropertyName("dw_stimulus_p")]
+    public double? DurbinWatsonStimulusP { get; set; }
+
+    [JsonPropertyName("dw_per_leg")]
+    public double? DurbinWatsonPerLeg { get; set; }
+
+    [JsonPropertyName("dw_per_leg_p")]
+    public double? DurbinWatsonPerLegP { get; set; }
 
     [JsonPropertyName("lag1_autocorrelation")]
     public double? Lag1Autocorrelation { get; set; }

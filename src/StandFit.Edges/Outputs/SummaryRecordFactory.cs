@@ -46,6 +46,8 @@ public static class SummaryRecordFactory
             RunsZ = unit.Runs is { IsApplicable: true } r ? r.Z : null,
             RunsP = unit.Runs?.IsApplicable == true ? unit.Runs.P : null,
             RunsMethod = unit.Runs?.Method.ToString().ToLowerInvariant(),
+            RunsOrder = recipe?.RunsGate is { } runsGate ? ResidualOrderNames.Name(runsGate.Order) : null,
+            DurbinWatsonOrder = recipe?.DiagnosticGates.FirstOrDefault(g => g.Kind == DiagnosticGateKind.DurbinWatson) is { } dwGate ? ResidualOrderNames.Name(dwGate.Order) : null,
             Ruling = RulingText(unit.Ruling),
             ReasonCodes = [.. unit.Verdict.Reasons.Select(f => f.Code)],
             Reasons = [.. unit.Verdict.Reasons.Select(f => f.Sentence)],
@@ -164,9 +166,34 @@ public static class SummaryRecordFactory
             (record.RunsAcquisitionCount, record.RunsAcquisitionZ, record.RunsAcquisitionP) = (d.RunsByAcquisition.Runs, d.RunsByAcquisition.Z, d.RunsByAcquisition.P);
         }
 
+        if (d.RunsPerLeg.Of(Leg.Up) is { IsApplicable: true } up)
+        {
+            (record.RunsUpCount, record.RunsUpP) = (up.Runs, up.P);
+        }
+
+        if (d.RunsPerLeg.Of(Leg.Down) is { IsApplicable: true } down)
+        {
+            (record.RunsDownCount, record.RunsDownP) = (down.Runs, down.P);
+        }
+
+        if (d.RunsPerLeg.IsApplicable)
+        {
+            record.RunsPerLegP = d.RunsPerLeg.P;
+        }
+
         if (d.DurbinWatson.IsApplicable)
         {
             (record.DurbinWatson, record.DurbinWatsonP) = (d.DurbinWatson.Statistic, d.DurbinWatson.P);
+        }
+
+        if (d.DurbinWatsonByStimulus is { IsApplicable: true } byStimulus)
+        {
+            (record.DurbinWatsonStimulus, record.DurbinWatsonStimulusP) = (byStimulus.Statistic, byStimulus.P);
+        }
+
+        if (d.DurbinWatsonPerLeg is { IsApplicable: true } perLeg)
+        {
+            (record.DurbinWatsonPerLeg, record.DurbinWatsonPerLegP) = (perLeg.Statistic, perLeg.P);
         }
 
         if (d.Autocorrelation.IsApplicable)

@@ -1,5 +1,6 @@
 using System.Collections.Immutable;
 using System.Globalization;
+using StandFit.Core.Diagnostics;
 using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
@@ -822,6 +823,12 @@ public static partial class RecipeBinder
             }
 
             var normality = NormalityTest.ShapiroWilk;
+            var order = ResidualOrder.Acquisition;
+            if (kind == DiagnosticGateKind.DurbinWatson)
+            {
+                order = ReadOrder(gate, ResidualOrder.Acquisition);
+            }
+
             if (kind == DiagnosticGateKind.Normality)
             {
                 var test = gate.Text("test", required: true);
@@ -843,11 +850,29 @@ public static partial class RecipeBinder
 
             if (ReadFloor(gate) is { } floor)
             {
-                builder.Add(new DiagnosticGate(kind.Value, floor, normality));
+                builder.Add(new DiagnosticGate(kind.Value, floor, normality, order));
             }
         }
 
         return builder.ToImmutable();
+    }
+
+    /// <summary>A gate's <c>order</c> (stimulus, acquisition or per-leg), or <paramref name="fallback"/> when not given or not valid (reported).</summary>
+    private static ResidualOrder ReadOrder(MapReader gate, ResidualOrder fallback)
+    {
+        var text = gate.Text("order", required: false);
+        if (text is null)
+        {
+            return fallback;
+        }
+
+        if (ResidualOrderNames.Parse(text) is { } order)
+        {
+            return order;
+        }
+
+        gate.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(gate.Path("order"), text, RecipeSchema.OrderChoices, Suggestions.Closest(text, RecipeSchema.OrderChoices)), gate.Node("order"));
+        return fallback;
     }
 
     private static double? ReadFloor(MapReader gate)
@@ -945,7 +970,8 @@ public static partial class RecipeBinder
             return null;
         }
 
-        return new RunsGate(floor.Value);
+        var order = ReadOrder(runs, ResidualOrder.Stimulus);
+        return new RunsGate(floor.Value, order);
     }
 
     private sealed record Weights(string? Column, WeightRule? Rule);

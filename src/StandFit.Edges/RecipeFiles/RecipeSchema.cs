@@ -57,11 +57,11 @@ public static class RecipeSchema
     public static readonly ImmutableArray<string> BootstrapSchemes = ["pairs", "residual", "wild-rademacher", "wild-mammen"];
     public static readonly ImmutableArray<string> JackknifeKinds = ["delete-one", "delete-leg", "delete-cycle"];
     public static readonly ImmutableArray<string> NormalityTests = ["shapiro-wilk", "anderson-darling"];
+    public static readonly ImmutableArray<string> OrderChoices = [Core.Diagnostics.ResidualOrderNames.Stimulus, Core.Diagnostics.ResidualOrderNames.Acquisition, Core.Diagnostics.ResidualOrderNames.PerLeg];
 
     /// <summary>The gates on the residual diagnostics that take only a p-value floor, with what each tests.</summary>
     public static readonly ImmutableArray<(string Key, string Description)> FloorGates =
     [
-        ("durbin_watson", "Durbin-Watson on the residuals in acquisition order, exact one-sided p (positive autocorrelation)."),
         ("lack_of_fit", "Lack-of-fit F against pure error from replicated set points (see set_points)."),
         ("curvature", "Partial F of the next polynomial power."),
         ("heteroscedasticity", "Breusch-Pagan, Koenker's studentized form: a residual variance that changes along the sweep."),
@@ -217,9 +217,21 @@ public static class RecipeSchema
             {
                 Children =
                 [
-                    new("runs_test", ValueKind.Map, "The runs test on the signs of the residuals in stimulus order.")
+                    new("runs_test", ValueKind.Map, "The runs test on the signs of the residuals (Wald-Wolfowitz; exact for small counts).")
                     {
-                        Children = [new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true }],
+                        Children =
+                        [
+                            new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true },
+                            new("order", ValueKind.Text, "The order of the residual signs: stimulus (the default; curvature shows as runs), acquisition (drift in time) or per-leg (each leg in acquisition order, the smallest leg p Šidák-adjusted).") { Choices = OrderChoices },
+                        ],
+                    },
+                    new("durbin_watson", ValueKind.Map, "Durbin-Watson on the residuals, exact one-sided p (positive autocorrelation).")
+                    {
+                        Children =
+                        [
+                            PMin("its p-value"),
+                            new("order", ValueKind.Text, "The order of the residuals: acquisition (the default), stimulus, or per-leg (differences only between neighbours of one leg; one statistic, exact p).") { Choices = OrderChoices },
+                        ],
                     },
                     .. FloorGates.Select(g => new KeySpec(g.Key, ValueKind.Map, g.Description) { Children = [PMin("its p-value")] }),
                     new("normality", ValueKind.Map, "A normality test of the residuals.")

@@ -21,7 +21,7 @@ public sealed class OneShotRunTests : IClassFixture<OneShotRunTests.DemoRun>
     public void The_run_exits_with_zero_and_prints_the_totals()
     {
         Assert.Equal(0, _run.Outcome.ExitCode);
-        Assert.Contains("50 units: 35 pass, 5 fail, 2 retest, 8 rejected", _run.Outcome.Output, StringComparison.Ordinal);
+        Assert.Contains("50 units: 34 pass, 7 fail, 1 retest, 8 rejected", _run.Outcome.Output, StringComparison.Ordinal);
     }
 
     [Fact]
@@ -41,7 +41,7 @@ public sealed class OneShotRunTests : IClassFixture<OneShotRunTests.DemoRun>
 
             if (expected.Ruling == "pass")
             {
-                Assert.All(codes, c => Assert.True(c.EndsWith("within_limits", StringComparison.Ordinal) || c == "residuals.runs_ok", $"{expected.File}: a pass carries {c}"));
+                Assert.All(codes, c => Assert.True(c.EndsWith("within_limits", StringComparison.Ordinal) || (c.StartsWith("residuals.", StringComparison.Ordinal) && c.EndsWith("_ok", StringComparison.Ordinal)), $"{expected.File}: a pass carries {c}"));
             }
         }
     }

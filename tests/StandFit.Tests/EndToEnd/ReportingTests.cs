@@ -103,9 +103,9 @@ public sealed partial class ReportingTests(ReportingTests.DemoReport demo) : ICl
         Assert.Equal("run", row["command"]);
         Assert.Equal("finished", row["state"]);
         Assert.Equal(50L, Long(row["processed"]));
-        Assert.Equal(35L, Long(row["pass"]));
-        Assert.Equal(5L, Long(row["fail"]));
-        Assert.Equal(2L, Long(row["retest"]));
+        Assert.Equal(34L, Long(row["pass"]));
+        Assert.Equal(7L, Long(row["fail"]));
+        Assert.Equal(1L, Long(row["retest"]));
         Assert.Equal(8L, Long(row["rejected"]));
         Assert.Equal(0L, Long(row["duplicate"]));
         Assert.Equal(Convert.ToHexStringLower(SHA256.HashData(File.ReadAllBytes(demo.Config))), row["config_hash"]);
@@ -125,11 +125,11 @@ public sealed partial class ReportingTests(ReportingTests.DemoReport demo) : ICl
 
         var headline = page.Descendants().Single(e => (string?)e.Attribute("id") == "yield-total");
         Assert.Equal("50", Count(headline, "units"));
-        Assert.Equal("35", Count(headline, "pass"));
-        Assert.Equal("5", Count(headline, "fail"));
-        Assert.Equal("2", Count(headline, "retest"));
+        Assert.Equal("34", Count(headline, "pass"));
+        Assert.Equal("7", Count(headline, "fail"));
+        Assert.Equal("1", Count(headline, "retest"));
         Assert.Equal("8", Count(headline, "rejected"));
-        Assert.Equal("70.0 %", Count(headline, "yield"));
+        Assert.Equal("68.0 %", Count(headline, "yield"));
 
         var failing = DemoSet.Expected.Where(e => e.Ruling is "fail" or "retest").ToList();
         var details = page.Descendants().Where(e => e.Name.LocalName == "details" && (string?)e.Attribute("class") == "unit").ToList();
