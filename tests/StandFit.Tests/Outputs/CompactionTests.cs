@@ -47,12 +47,19 @@ public sealed class CompactionTests
     private static async Task CompactAllAsync(string output, Action<string>? afterStep = null, string? only = null)
     {
         var compactor = new PartitionCompactor(output, TimeProvider.System) { MinimumAge = TimeSpan.Zero, AfterStep = afterStep };
+        var ids = new Dictionary<string, string>(StringComparer.Ordinal);
         foreach (var table in new[] { CompactTable.Summaries, CompactTable.Points })
         {
             using var held = compactor.Lock(table);
             foreach (var folder in compactor.Folders(table, null, null).Where(f => only is null || f.EndsWith(only, StringComparison.Ordinal)))
             {
-                await compactor.CompactAsync(table, folder, compactor.NewId());
+                var key = Path.GetFileName(folder);
+                if (!ids.TryGetValue(key, out var id))
+                {
+                    ids[key] = id = compactor.NewId();
+                }
+
+                await compactor.CompactAsync(table, folder, id);
             }
         }
     }
