@@ -19,8 +19,8 @@ public static class Help
           compact          merge each partition's small Parquet files into one, atomically
 
         Run 'standfit <command> --help' for a command's options. 'standfit --version' prints the version.
-        Exit codes: 0 done, 1 invalid input (recipes check, inspect, report), 2 usage, 3 configuration,
-        4 output fault, 5 fatal (pass/fail log not writable).
+        Exit codes: 0 done, 1 invalid input (recipes check, inspect, report, compact), 2 usage, 3 configuration
+        (compact: a table's lock is held), 4 output fault, 5 fatal (pass/fail log not writable).
         """;
 
     public const string Run = """
