@@ -16,10 +16,11 @@ public static class Help
           recipes explain PART  print the effective recipe of a part, after inheritance
           recipes schema   print the JSON Schema of the recipe language
           report           write the morning report (one HTML file) from an output folder's tables
+          compact          merge each partition's small Parquet files into one, atomically
 
         Run 'standfit <command> --help' for a command's options. 'standfit --version' prints the version.
-        Exit codes: 0 done, 1 invalid input (recipes check, inspect, report), 2 usage, 3 configuration,
-        4 output fault, 5 fatal (pass/fail log not writable).
+        Exit codes: 0 done, 1 invalid input (recipes check, inspect, report, compact), 2 usage, 3 configuration
+        (compact: a table's lock is held), 4 output fault, 5 fatal (pass/fail log not writable).
         """;
 
     public const string Run = """
@@ -71,6 +72,28 @@ public static class Help
           --from DATE      the first date of test start to include, YYYY-MM-DD (UTC; default: the first)
           --to DATE        the last date to include, YYYY-MM-DD (default: the last)
           --out FILE       where to write the report (default: OUTPUT_FOLDER/reports/report-....html)
+        """;
+
+    public const string Compact = """
+        Usage: standfit compact --output OUTPUT_FOLDER [--table TABLE] [--from DATE] [--to DATE]
+                                [--min-age MINUTES] [--dry-run]
+
+        Merges the small Parquet files of each date= partition (summaries, points) and of the runs
+        folder into one file per folder, so that readers open few large files. Safe while workers
+        write to the same folders: only published files last written at least --min-age ago are
+        merged, and a reader never sees a row twice or missing (see docs/outputs.md). A kill at any
+        step is resolved by the next compact.
+
+          --output FOLDER    the output folder (the configuration's folders.output)
+          --table TABLE      summaries, points, runs or all (default: all)
+          --from DATE        the first partition date to compact, YYYY-MM-DD (default: the first)
+          --to DATE          the last partition date to compact, YYYY-MM-DD (default: the last)
+          --min-age MINUTES  leave files written less than this long ago (default 10; 0 to 10080)
+          --dry-run          print what would be merged; change nothing
+
+        Exit codes: 0 done (also when there was nothing to merge), 1 no output folder, 2 usage,
+        3 another compact is running on a table, 4 a file could not be read or written (the folder is
+        left as the next compact resolves it).
         """;
 
     public const string RecipesExplain = """

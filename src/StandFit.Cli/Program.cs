@@ -20,6 +20,7 @@ return args[0] switch
     "watch" => await WatchCommand.ExecuteAsync(rest, output, error),
     "inspect" => InspectCommand.Execute(rest, output, error),
     "report" => await ReportCommand.ExecuteAsync(rest, output, error),
+    "compact" => await CompactCommand.ExecuteAsync(rest, output, error),
     "recipes" when rest.Length > 0 && rest[0] == "check" => RecipesCheckCommand.Execute(rest[1..], output, error),
     "recipes" when rest.Length > 0 && rest[0] == "explain" => RecipesCommand.Explain(rest[1..], output, error),
     "recipes" when rest.Length > 0 && rest[0] == "schema" => RecipesCommand.Schema(rest[1..], output, error),

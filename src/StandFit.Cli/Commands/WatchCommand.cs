@@ -52,7 +52,7 @@ internal static class WatchCommand
         Pipeline pipeline;
         try
         {
-            pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System, holdUncoveredParts: true);
+            pipeline = Pipeline.Build(options, loggers, DispositionMode.Move, TimeProvider.System, holdUncoveredParts: true, flushAge: TimeSpan.FromSeconds(options.FlushSeconds));
         }
         catch (WorkerBusyException e)
         {

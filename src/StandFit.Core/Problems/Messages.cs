@@ -402,5 +402,8 @@ public static class Messages
     public static string ReportBadDate(string option, string shown) => F($"{option} '{shown}' is not a date; write it as YYYY-MM-DD (a UTC date of test start, as the date= folders name them).");
     public static string ReportDatesReversed(string from, string to) => F($"--from {from} is after --to {to}; give the earlier date first.");
     public static string ReportNoOutputFolder(string folder) => F($"the output folder '{folder}' does not exist; give the folder that holds summaries/ (the configuration's folders.output).");
+    public static string CompactBadTable(string shown) => F($"--table '{shown}' is not a table; the choices are: summaries, points, runs, all.");
+    public static string CompactBadMinAge(string shown) => F($"--min-age '{shown}' is not a number of minutes from 0 to 10080 (a week); files written less than this long ago are not merged.");
+    public static string CompactNoTable(string folder) => F($"'{folder}' holds none of summaries/, points/ or runs/, so it is not a StandFit output folder (or nothing was published yet); give the configuration's folders.output.");
     public static string ReportNoSummaries(string folder) => F($"'{folder}' holds no summaries/ folder, so it is not a StandFit output folder (or nothing was published yet); give the folder that holds summaries/.");
 }

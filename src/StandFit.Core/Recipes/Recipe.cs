@@ -8,6 +8,19 @@ using StandFit.Core.Uncertainty;
 
 namespace StandFit.Core.Recipes;
 
+/// <summary>Which units' sweep points go to the per-point table (the recipe's <c>output.points</c>).</summary>
+public enum PointsOutput
+{
+    /// <summary>Every fitted unit's points (the default).</summary>
+    All,
+
+    /// <summary>Only the points of units ruled fail or retest: the ones an engineer draws and looks at.</summary>
+    Flagged,
+
+    /// <summary>No points: the summary row alone.</summary>
+    None,
+}
+
 /// <summary>Units of the stimulus (input) and output columns, as the recipe states them (free text, e.g. "kPa", "mV").</summary>
 public sealed record ColumnUnits
 {
@@ -161,6 +174,17 @@ public sealed class Recipe
 
     /// <summary>The data-quality gates checked before any fit.</summary>
     public SweepExpectations Sweep { get; init; } = SweepExpectations.None;
+
+    /// <summary>Which units' points go to the per-point table (<c>output.points</c>; default all).</summary>
+    public PointsOutput Points { get; init; } = PointsOutput.All;
+
+    /// <summary>True when a unit of this recipe with this ruling keeps its points in the per-point table.</summary>
+    public bool KeepsPoints(Ruling ruling) => Points switch
+    {
+        PointsOutput.All => true,
+        PointsOutput.Flagged => ruling is Ruling.Fail or Ruling.Retest,
+        _ => false,
+    };
 
     /// <summary>File-name patterns (<c>*</c> and <c>?</c> wildcards) that select this recipe for files without part metadata.</summary>
     public ImmutableArray<string> FilePatterns { get; init; } = [];

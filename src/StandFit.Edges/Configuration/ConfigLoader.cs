@@ -14,7 +14,7 @@ public static class ConfigLoader
     public static readonly ImmutableArray<string> FolderKeys = ["inbox", "archive", "rejected", "output", "recipes", "logs"];
     public static readonly ImmutableArray<string> ReaderKeys = ["max_file_bytes"];
     public static readonly ImmutableArray<string> WatchKeys = ["poll_seconds", "stable_seconds", "worker_id", "status_seconds", "fault_log_seconds"];
-    public static readonly ImmutableArray<string> OutputKeys = ["flush_units", "journal_compact_units"];
+    public static readonly ImmutableArray<string> OutputKeys = ["flush_units", "flush_seconds", "journal_compact_units"];
 
     public static Result<StandFitOptions> Load(string path)
     {
@@ -75,6 +75,7 @@ public static class ConfigLoader
         var faultLog = watch?.Number("fault_log_seconds", required: false);
         var outputSection = top.Map("output", OutputKeys, required: false);
         var flushUnits = outputSection?.Integer("flush_units", required: false);
+        var flushSeconds = outputSection?.Number("flush_seconds", required: false);
         var compactUnits = outputSection?.Integer("journal_compact_units", required: false);
 
         Positive(reader, "max_file_bytes", maxBytes);
@@ -91,6 +92,16 @@ public static class ConfigLoader
             watch.Sink.Add(RecipeCodes.BadValue, Messages.BadWorkerId(SweepAssembler.Shown(workerId)), watch.Node("worker_id"));
         }
         Positive(outputSection, "flush_units", flushUnits);
+        if (outputSection is not null && flushUnits is { } fu && fu > StandFitOptions.MaxFlushUnits)
+        {
+            outputSection.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(outputSection.Path("flush_units"), Numbers.Format(fu), "at most " + Numbers.Format(StandFitOptions.MaxFlushUnits)), outputSection.Node("flush_units"));
+        }
+
+        if (outputSection is not null && flushSeconds is { } fs && (fs < 0 || fs > StandFitOptions.MaxFlushSeconds))
+        {
+            outputSection.Sink.Add(RecipeCodes.BadValue, Messages.OutOfRange(outputSection.Path("flush_seconds"), Numbers.Format(fs), "from 0 to " + Numbers.Format(StandFitOptions.MaxFlushSeconds)), outputSection.Node("flush_seconds"));
+        }
+
         Positive(outputSection, "journal_compact_units", compactUnits);
 
         if (sink.HasProblems)
@@ -116,6 +127,7 @@ public static class ConfigLoader
             StatusSeconds = status ?? defaults.StatusSeconds,
             FaultLogSeconds = faultLog ?? defaults.FaultLogSeconds,
             FlushUnits = flushUnits ?? defaults.FlushUnits,
+            FlushSeconds = flushSeconds ?? defaults.FlushSeconds,
             JournalCompactUnits = compactUnits ?? defaults.JournalCompactUnits,
         };
     }

@@ -46,8 +46,17 @@ public sealed record StandFitOptions
     /// <summary>The status file: <c>output/status.json</c>, or <c>output/status-WORKER.json</c> when the worker id is configured.</summary>
     public string StatusFile => Path.Combine(Output, WorkerIdConfigured ? $"status-{WorkerId}.json" : "status.json");
 
-    /// <summary>Units per Parquet file and per pass/fail log flush in a one-shot run (default 5000).</summary>
+    /// <summary>The most units in one batch (one Parquet file per partition, one pass/fail log flush); a batch is published once this many wait (default 5000, at most <see cref="MaxFlushUnits"/>).</summary>
     public int FlushUnits { get; init; } = 5000;
+
+    /// <summary>The largest <see cref="FlushUnits"/> accepted.</summary>
+    public const int MaxFlushUnits = 50_000;
+
+    /// <summary><c>watch</c>: publish the waiting units once the oldest was taken this long ago (seconds; default 30; 0 publishes after every pass; at most <see cref="MaxFlushSeconds"/>).</summary>
+    public double FlushSeconds { get; init; } = 30;
+
+    /// <summary>The largest <see cref="FlushSeconds"/> accepted.</summary>
+    public const double MaxFlushSeconds = 3600;
 
     /// <summary>Compact the publish journal into its index files once it holds this many units (default 10000).</summary>
     public int JournalCompactUnits { get; init; } = Outputs.PublishJournal.DefaultCompactUnits;

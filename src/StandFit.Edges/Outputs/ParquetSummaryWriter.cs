@@ -133,7 +133,8 @@ public sealed class ParquetSummaryWriter : ISummarySink
 
     /// <summary>
     /// Renames a prepared file to its final name if that has not happened yet (recovery of a batch
-    /// the journal holds). False when neither the temporary nor the final file exists.
+    /// the journal holds). True too when <c>standfit compact</c> has merged the published file into
+    /// another (a compaction manifest of its folder names it). False when the file is nowhere.
     /// </summary>
     public bool RollForward(string relativeFinal)
     {
@@ -146,7 +147,7 @@ public sealed class ParquetSummaryWriter : ISummarySink
         var temporary = TemporaryOf(final);
         if (!File.Exists(temporary))
         {
-            return false;
+            return CompactionManifest.WasCompacted(Path.GetDirectoryName(final)!, Path.GetFileName(final));
         }
 
         File.Move(temporary, final, overwrite: false);

@@ -25,6 +25,15 @@ namespace StandFit.Edges.Processing;
 /// <see cref="HoldUncoveredParts"/> (<c>watch</c>), a claimed unit whose part no recipe lists is
 /// held: it stays claimed, unjudged and unpublished, is warned about once, and is read again on
 /// the first pass under other recipes; without it (<c>run</c>), it is rejected (<c>input.no_recipe</c>).
+/// <para>
+/// Flush policy (<c>output.flush_units</c>, <c>output.flush_seconds</c>): judged units wait in memory,
+/// their inputs still claimed and nothing of them written, until a batch is due: as soon as
+/// <c>flush_units</c> units wait, those are published as one batch; and when the oldest waiting unit
+/// was taken <see cref="FlushAge"/> ago or more, everything waiting is published. With
+/// <see cref="FlushAge"/> zero (<c>run</c>) every pass publishes what it judged. Waiting units are not
+/// committed: a crash loses only their judgement, and their claimed inputs are judged again at the
+/// next start, as leftovers; the journal stays the commit point.
+/// </para>
 /// </summary>
 public sealed class BatchRunner(
     UnitProcessor processor,
@@ -50,6 +59,10 @@ public sealed class BatchRunner(
     private readonly HeapGuard _heap = new(HeapGuard.DefaultLimitBytes);
     private PublishJournal? _journal;
     private int _batchSequence;
+
+    // Judged units waiting for their batch (claimed, not committed), oldest first, with when each was taken (clock's UTC).
+    private readonly List<(ProcessedUnit Unit, DateTimeOffset Taken)> _pending = [];
+    private readonly HashSet<string> _pendingPaths = new(StringComparer.Ordinal);
 
     /// <summary>Called once per published unit, in input order (the command line prints these).</summary>
     public Action<SummaryRecord>? OnPublished { get; init; }
@@ -78,6 +91,39 @@ public sealed class BatchRunner(
 
     /// <summary>How often the same unreadable input is logged again.</summary>
     public TimeSpan RepeatLogInterval { get; init; } = TimeSpan.FromMinutes(5);
+
+    /// <summary>
+    /// Publish the waiting units once the oldest was taken this long ago (<c>output.flush_seconds</c>,
+    /// in <c>watch</c>). Zero (the default, <c>run</c>): every pass publishes all it judged.
+    /// </summary>
+    public TimeSpan FlushAge { get; init; } = TimeSpan.Zero;
+
+    /// <summary>Units judged and waiting for their batch (not yet published).</summary>
+    public int Pending
+    {
+        get
+        {
+            lock (_pending)
+            {
+                return _pending.Count;
+            }
+        }
+    }
+
+    /// <summary>How long until the waiting units are due by age (zero when due now), or null when none waits.</summary>
+    public TimeSpan? UntilFlush()
+    {
+        lock (_pending)
+        {
+            if (_pending.Count == 0)
+            {
+                return null;
+            }
+
+            var left = _pending[0].Taken + FlushAge - clock.GetUtcNow();
+            return left > TimeSpan.Zero ? left : TimeSpan.Zero;
+        }
+    }
 
     /// <summary>Compact the journal once it holds this many units (<c>output.journal_compact_units</c>).</summary>
     public int JournalCompactUnits { get; init; } = PublishJournal.DefaultCompactUnits;
@@ -131,7 +177,11 @@ public sealed class BatchRunner(
     /// <summary>Inputs in hand that are not moved on yet (claimed and waiting).</summary>
     public int Held() => intake.Leftovers().Count;
 
-    /// <summary>Finishes committed work, then processes every leftover and every candidate; stops between units when <paramref name="stop"/> is cancelled.</summary>
+    /// <summary>
+    /// Finishes committed work, then judges every leftover and every candidate and publishes the
+    /// batches that are due (<see cref="FlushAge"/>); stops between units when <paramref name="stop"/>
+    /// is cancelled. Returns what was published (and skipped or held) in this pass.
+    /// </summary>
     public async Task<BatchCounts> ProcessAsync(IReadOnlyList<string> candidates, CancellationToken stop)
     {
         if (_journal is null)
@@ -141,10 +191,16 @@ public sealed class BatchRunner(
 
         var total = FinishCommitted();
         Journal.Refresh();
-        var leftovers = SkipHeld(intake.Leftovers());
+        List<InputFile> leftovers;
+        lock (_pending)
+        {
+            leftovers = [.. SkipHeld(intake.Leftovers()).Where(i => !_pendingPaths.Contains(i.Path))];
+        }
+
         for (var start = 0; start < leftovers.Count && !stop.IsCancellationRequested; start += batchSize)
         {
-            total.Add(await ProcessBatchAsync([.. leftovers.Skip(start).Take(batchSize)], stop).ConfigureAwait(false));
+            total.Add(Judge([.. leftovers.Skip(start).Take(batchSize)], stop));
+            total.Add(await PublishFullBatchesAsync().ConfigureAwait(false));
         }
 
         for (var start = 0; start < candidates.Count && !stop.IsCancellationRequested; start += batchSize)
@@ -152,11 +208,61 @@ public sealed class BatchRunner(
             var taken = intake.Take([.. candidates.Skip(start).Take(batchSize)]);
             if (taken.Count > 0)
             {
-                total.Add(await ProcessBatchAsync(taken, stop).ConfigureAwait(false));
+                total.Add(Judge(taken, stop));
+                total.Add(await PublishFullBatchesAsync().ConfigureAwait(false));
             }
         }
 
+        if (UntilFlush() == TimeSpan.Zero)
+        {
+            total.Add(await FlushAsync().ConfigureAwait(false));
+        }
+
         return total;
+    }
+
+    /// <summary>Publishes every waiting unit now, whatever its age (a clean stop of <c>watch</c>).</summary>
+    public async Task<BatchCounts> FlushAsync()
+    {
+        var total = new BatchCounts();
+        while (TakePending(batchSize) is { Count: > 0 } batch)
+        {
+            total.Add(await PublishAsync(batch).ConfigureAwait(false));
+        }
+
+        return total;
+    }
+
+    private async Task<BatchCounts> PublishFullBatchesAsync()
+    {
+        var total = new BatchCounts();
+        while (Pending >= batchSize)
+        {
+            total.Add(await PublishAsync(TakePending(batchSize)).ConfigureAwait(false));
+        }
+
+        return total;
+    }
+
+    /// <summary>
+    /// The oldest waiting units, up to <paramref name="count"/>, taken off the waiting list. If
+    /// publishing them fails they are forgotten: their inputs stay claimed and are judged again as
+    /// leftovers on the next pass.
+    /// </summary>
+    private List<ProcessedUnit> TakePending(int count)
+    {
+        lock (_pending)
+        {
+            var n = Math.Min(count, _pending.Count);
+            var taken = _pending.Take(n).Select(p => p.Unit).ToList();
+            _pending.RemoveRange(0, n);
+            foreach (var unit in taken)
+            {
+                _pendingPaths.Remove(unit.Input.Path);
+            }
+
+            return taken;
+        }
     }
 
     /// <summary>
@@ -283,7 +389,8 @@ public sealed class BatchRunner(
         return counts;
     }
 
-    private async Task<BatchCounts> ProcessBatchAsync(IReadOnlyList<InputFile> batch, CancellationToken stop)
+    /// <summary>Judges a chunk of inputs (in parallel) and adds the units to the waiting list; counts the skipped and newly held ones.</summary>
+    private BatchCounts Judge(IReadOnlyList<InputFile> batch, CancellationToken stop)
     {
         var processed = new ProcessedUnit?[batch.Count];
         var counts = new BatchCounts();
@@ -320,16 +427,29 @@ public sealed class BatchRunner(
             }
         }
 
-        var units = new List<ProcessedUnit>(batch.Count);
+        var taken = clock.GetUtcNow();
         foreach (var unit in processed.OfType<ProcessedUnit>())
         {
             if (!Hold(unit, counts))
             {
                 Unhold(unit);
-                units.Add(unit);
+                lock (_pending)
+                {
+                    if (_pendingPaths.Add(unit.Input.Path))
+                    {
+                        _pending.Add((unit, taken));
+                    }
+                }
             }
         }
 
+        return counts;
+    }
+
+    /// <summary>Publishes judged units as one batch: duplicates and retests, Parquet files, commit, renames, pass/fail lines, then the inputs moved on.</summary>
+    private async Task<BatchCounts> PublishAsync(IReadOnlyList<ProcessedUnit> units)
+    {
+        var counts = new BatchCounts();
         if (units.Count == 0)
         {
             return counts;

@@ -50,7 +50,13 @@ public sealed class Pipeline : IDisposable
     public RunRecorder NewRunRecorder(string command) =>
         new(_options.Output, Runner.RunId, command, _options.WorkerId, StartedAt, ToolInfo.Version, _options.ConfigHash);
 
-    /// <summary>Builds the pipeline. <paramref name="holdUncoveredParts"/>: <c>watch</c> holds a unit whose part no recipe lists until one does (see <see cref="BatchRunner.HoldUncoveredParts"/>); <c>run</c> rejects it.</summary>
+    /// <summary>
+    /// Builds the pipeline. <paramref name="holdUncoveredParts"/>: <c>watch</c> holds a unit whose part
+    /// no recipe lists until one does (see <see cref="BatchRunner.HoldUncoveredParts"/>); <c>run</c>
+    /// rejects it. <paramref name="flushAge"/>: <c>watch</c> lets judged units wait up to this long for
+    /// a fuller batch (<c>output.flush_seconds</c>, see <see cref="BatchRunner.FlushAge"/>); null
+    /// (<c>run</c>): every pass publishes what it judged.
+    /// </summary>
     public static Pipeline Build(
         StandFitOptions options,
         ILoggerFactory loggers,
@@ -58,7 +64,8 @@ public sealed class Pipeline : IDisposable
         TimeProvider clock,
         Action<SummaryRecord>? onPublished = null,
         Action<SummaryRecord>? onDuplicate = null,
-        bool holdUncoveredParts = false)
+        bool holdUncoveredParts = false,
+        TimeSpan? flushAge = null)
     {
         var logger = loggers.CreateLogger("StandFit");
         var workerLock = WorkerLock.Acquire(options.Output, options.WorkerId);
@@ -95,6 +102,7 @@ public sealed class Pipeline : IDisposable
                 HoldUncoveredParts = holdUncoveredParts && claims is not null,
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
                 JournalCompactUnits = options.JournalCompactUnits,
+                FlushAge = flushAge ?? TimeSpan.Zero,
             };
             return new Pipeline(workerLock, options, startedAt.UtcDateTime, recipes, processor, runner, claims);
         }

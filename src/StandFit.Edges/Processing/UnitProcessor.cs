@@ -53,7 +53,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
         {
             return new ProcessedUnit(input, file, evaluation)
             {
-                Points = PointRecordFactory.Create(evaluation, UnitKeys.Of(file.Sha256, evaluation.Recipe?.ContentHash)),
+                Points = evaluation.Recipe is { } r && !r.KeepsPoints(evaluation.Ruling) ? [] : PointRecordFactory.Create(evaluation, UnitKeys.Of(file.Sha256, evaluation.Recipe?.ContentHash)),
                 UncoveredPart = uncovered,
                 Catalog = catalog,
             };

@@ -101,6 +101,7 @@ public static partial class RecipeBinder
         var diagnosticGates = ReadDiagnosticGates(gates);
         var setPointTolerance = ReadSetPoints(top);
         var nominal = ReadNominal(top);
+        var points = ReadOutput(top);
         CheckNominalFigures(top, limits, nominal);
         CheckExpressionRecipe(top, model);
         CheckCurveUses(top, model, derived, inputCount);
@@ -134,7 +135,27 @@ public static partial class RecipeBinder
             DiagnosticGates = diagnosticGates,
             SetPointTolerance = setPointTolerance,
             Nominal = nominal,
+            Points = points,
         };
+    }
+
+    /// <summary>The <c>output</c> section: which units' points go to the per-point table.</summary>
+    private static PointsOutput ReadOutput(MapReader top)
+    {
+        var section = top.Map("output", Root.Child("output").ChildNames, required: false);
+        var text = section?.Text("points", required: false);
+        switch (text)
+        {
+            case null or "all":
+                return PointsOutput.All;
+            case "flagged":
+                return PointsOutput.Flagged;
+            case "none":
+                return PointsOutput.None;
+            default:
+                section!.Sink.Add(RecipeCodes.BadValue, Messages.UnknownChoice(section.Path("points"), text, RecipeSchema.PointsOutputs, Suggestions.Closest(text, RecipeSchema.PointsOutputs)), section.Node("points"));
+                return PointsOutput.All;
+        }
     }
 
     private static SweepFormat ReadFormat(MapReader top)

@@ -58,6 +58,7 @@ public static class RecipeSchema
     public static readonly ImmutableArray<string> JackknifeKinds = ["delete-one", "delete-leg", "delete-cycle"];
     public static readonly ImmutableArray<string> NormalityTests = ["shapiro-wilk", "anderson-darling"];
     public static readonly ImmutableArray<string> OrderChoices = [Core.Diagnostics.ResidualOrderNames.Stimulus, Core.Diagnostics.ResidualOrderNames.Acquisition, Core.Diagnostics.ResidualOrderNames.PerLeg];
+    public static readonly ImmutableArray<string> PointsOutputs = ["all", "flagged", "none"];
 
     /// <summary>The gates on the residual diagnostics that take only a p-value floor, with what each tests.</summary>
     public static readonly ImmutableArray<(string Key, string Description)> FloorGates =
@@ -211,6 +212,13 @@ public static class RecipeSchema
                 [
                     new("offset", ValueKind.Number, "Nominal output at zero stimulus, in output units.") { Required = true },
                     new("gain", ValueKind.Number, "Nominal sensitivity, output units per stimulus unit.") { Required = true },
+                ],
+            },
+            new("output", ValueKind.Map, "What this part's units write to the output tables.")
+            {
+                Children =
+                [
+                    new("points", ValueKind.Text, "Which units' sweep points go to the per-point table: all (the default: every fitted unit), flagged (only units ruled fail or retest, whose pictures the morning report draws) or none. The summary row and the pass/fail line are written for every unit whatever this says.") { Choices = PointsOutputs },
                 ],
             },
             new("gates", ValueKind.Map, "Residual-structure gates.")

@@ -65,7 +65,7 @@ public static class ReportReader
                 continue;
             }
 
-            foreach (var file in Directory.EnumerateFiles(folder, "*.parquet").Where(f => !Path.GetFileName(f).StartsWith('.')).Order(StringComparer.Ordinal))
+            foreach (var file in Published(folder))
             {
                 if (seen.Add(file))
                 {
@@ -78,7 +78,7 @@ public static class ReportReader
         var runsFolder = Path.Combine(outputFolder, "runs");
         if (Directory.Exists(runsFolder))
         {
-            foreach (var file in Directory.EnumerateFiles(runsFolder, "*.parquet").Where(f => !Path.GetFileName(f).StartsWith('.')).Order(StringComparer.Ordinal))
+            foreach (var file in Published(runsFolder))
             {
                 foreach (var r in await TryReadAsync<RunRecord>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
                 {
@@ -116,7 +116,21 @@ public static class ReportReader
             .Select(d => (Folder: d, Ok: DateOnly.TryParseExact(Path.GetFileName(d)["date=".Length..], "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var day), Day: day))
             .Where(d => d.Ok && (from is null || d.Day >= from) && (to is null || d.Day <= to))
             .OrderBy(d => d.Day)
-            .SelectMany(d => Directory.EnumerateFiles(d.Folder, "*.parquet").Where(f => !Path.GetFileName(f).StartsWith('.')).Order(StringComparer.Ordinal))
+            .SelectMany(d => Published(d.Folder))
+            .ToList();
+    }
+
+    /// <summary>
+    /// The published Parquet files of one folder, in name order: never a hidden temporary file, and
+    /// never a file a compaction has merged into a published file (the reader's rule of
+    /// <see cref="CompactionManifest.Superseded"/>), so a compaction in progress shows no row twice.
+    /// </summary>
+    public static IEnumerable<string> Published(string folder)
+    {
+        var superseded = CompactionManifest.Superseded(folder);
+        return Directory.EnumerateFiles(folder, "*.parquet")
+            .Where(f => !Path.GetFileName(f).StartsWith('.') && !superseded.Contains(Path.GetFileName(f)))
+            .Order(StringComparer.Ordinal)
             .ToList();
     }
 

@@ -118,6 +118,11 @@ public sealed class InboxLoop
                 var ok = await PassAsync(stop).ConfigureAwait(false);
                 backoff = ok ? TimeSpan.Zero : Next(backoff);
                 var delay = ok ? _settings.Poll : backoff;
+                if (ok && _runner.UntilFlush() is { } due && due < delay)
+                {
+                    delay = due; // a quiet inbox: wake when the waiting units are due by age
+                }
+
                 using var delayCancel = CancellationTokenSource.CreateLinkedTokenSource(stop);
                 var woken = Volatile.Read(ref _wake).Task;
                 await Task.WhenAny(woken, Task.Delay(delay, _clock, delayCancel.Token)).ConfigureAwait(false);
@@ -130,6 +135,11 @@ public sealed class InboxLoop
         }
         finally
         {
+            if (stop.IsCancellationRequested)
+            {
+                await FlushOnStopAsync().ConfigureAwait(false);
+            }
+
             Status.SetState(stop.IsCancellationRequested ? "stopped" : "failed");
             await statusStop.CancelAsync().ConfigureAwait(false);
             await statusTask.ConfigureAwait(false);
@@ -180,6 +190,27 @@ public sealed class InboxLoop
         }
 
         return ok;
+    }
+
+    /// <summary>A clean stop publishes the units waiting for their batch; if that fails they stay claimed and are judged again at the next start.</summary>
+    private async Task FlushOnStopAsync()
+    {
+        if (_runner.Pending == 0)
+        {
+            return;
+        }
+
+        try
+        {
+            var counts = await _runner.FlushAsync().ConfigureAwait(false);
+            Totals.Add(counts);
+            Status.Add(counts, _clock.GetUtcNow().UtcDateTime);
+            PassCompleted?.Invoke(counts);
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or AuditSinkException)
+        {
+            _outputFault.Failed(e);
+        }
     }
 
     private TimeSpan Next(TimeSpan backoff) =>

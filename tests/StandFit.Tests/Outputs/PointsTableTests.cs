@@ -179,3 +179,43 @@ public sealed class PointsTableTests
         return (records, points);
     }
 }
+
+/// <summary>The recipe's <c>output.points</c> end to end: the demo judged with every recipe set to flagged.</summary>
+public sealed class PointsOutputRunTests
+{
+    [Fact]
+    public async Task With_points_flagged_only_fail_and_retest_units_have_rows_in_the_per_point_table()
+    {
+        using var root = new TempFolder();
+        var recipes = Directory.CreateDirectory(Path.Combine(root.Path, "recipes")).FullName;
+        foreach (var file in Directory.EnumerateFiles(DemoSet.Recipes, "*.yaml"))
+        {
+            File.WriteAllText(Path.Combine(recipes, Path.GetFileName(file)), File.ReadAllText(file).TrimEnd() + "\noutput:\n  points: flagged\n");
+        }
+
+        var options = ConfigLoader.Load(WorkerConfig.Write(root, flushUnits: 100, recipes: recipes)).Value;
+        Assert.Empty(ConfigLoader.PrepareFolders(options, needInbox: false));
+        using (var pipeline = Pipeline.Build(options, NullLoggerFactory.Instance, DispositionMode.Copy, TimeProvider.System))
+        {
+            var counts = await pipeline.Runner.ProcessAsync(DropFolder.ListReady(DemoSet.Folder), CancellationToken.None);
+            Assert.Equal(DemoSet.Expected.Count, counts.Processed);
+        }
+
+        var summaries = Duck.Literal(Path.Combine(options.Output, "summaries", "**", "*.parquet"));
+        var points = Duck.Literal(Path.Combine(options.Output, "points", "**", "*.parquet"));
+        var withPoints = Duck.Query($"SELECT s.source_file, s.ruling, count(*) AS n, max(s.n_points) AS expected FROM read_parquet({summaries}) s JOIN read_parquet({points}) p USING (unit_key) GROUP BY ALL ORDER BY s.source_file");
+
+        // Every unit with points was ruled fail or retest, and has all of its points.
+        Assert.NotEmpty(withPoints);
+        Assert.All(withPoints, r => Assert.Contains((string)r["ruling"]!, new[] { "fail", "retest" }));
+        Assert.All(withPoints, r => Assert.Equal(Convert.ToInt64(r["expected"], CultureInfo.InvariantCulture), (long)r["n"]!));
+
+        // And every fitted fail or retest unit has them (sample-runs/expected.csv names the demo's rulings).
+        var flagged = Duck.Query($"SELECT source_file FROM read_parquet({summaries}) WHERE ruling IN ('fail', 'retest') AND residual_sd IS NOT NULL ORDER BY source_file").Select(r => (string)r["source_file"]!).ToList();
+        Assert.Equal(flagged, withPoints.Select(r => (string)r["source_file"]!).ToList());
+        var expectedFlagged = DemoSet.Expected.Count(e => e.Ruling is "fail" or "retest");
+        Assert.True(flagged.Count > 0 && flagged.Count <= expectedFlagged);
+        var passing = (long)Duck.Query($"SELECT count(*) AS n FROM read_parquet({summaries}) WHERE ruling = 'pass'")[0]["n"]!;
+        Assert.Equal(DemoSet.Expected.Count(e => e.Ruling == "pass"), passing);
+    }
+}

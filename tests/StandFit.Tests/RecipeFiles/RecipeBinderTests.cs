@@ -575,3 +575,65 @@ public sealed class RecipeBinderTests
         Assert.Contains("must be a list", problem.Message, StringComparison.Ordinal);
     }
 }
+
+/// <summary>The recipe's <c>output</c> section: which units' sweep points go to the per-point table.</summary>
+public sealed class RecipeOutputOptionsTests
+{
+    private const string Base = """
+        recipe: KP-250 pressure transducer
+        version: "2026.11"
+        parts: [KP-250]
+        columns:
+          stimulus: pressure_kPa
+          output: output_mV
+        model:
+          type: straight-line
+        confidence: 0.95
+        """;
+
+    private static Result<Recipe> Bind(string extra) => RecipeBinder.Bind("kp-250.yaml", Base + "\n" + extra, "h");
+
+    [Fact]
+    public void Without_an_output_section_every_fitted_unit_keeps_its_points()
+    {
+        var recipe = Bind("").Value;
+        Assert.Equal(PointsOutput.All, recipe.Points);
+        Assert.All(Enum.GetValues<Core.Judging.Ruling>(), r => Assert.True(recipe.KeepsPoints(r)));
+    }
+
+    [Theory]
+    [InlineData("all", PointsOutput.All)]
+    [InlineData("flagged", PointsOutput.Flagged)]
+    [InlineData("none", PointsOutput.None)]
+    public void Each_choice_of_output_points_binds(string text, PointsOutput expected)
+    {
+        Assert.Equal(expected, Bind("output:\n  points: " + text).Value.Points);
+    }
+
+    [Fact]
+    public void Flagged_keeps_the_points_of_fail_and_retest_units_only_and_none_keeps_none()
+    {
+        var flagged = Bind("output:\n  points: flagged").Value;
+        Assert.False(flagged.KeepsPoints(Core.Judging.Ruling.Pass));
+        Assert.True(flagged.KeepsPoints(Core.Judging.Ruling.Fail));
+        Assert.True(flagged.KeepsPoints(Core.Judging.Ruling.Retest));
+        var none = Bind("output:\n  points: none").Value;
+        Assert.All(Enum.GetValues<Core.Judging.Ruling>(), r => Assert.False(none.KeepsPoints(r)));
+    }
+
+    [Fact]
+    public void A_misspelt_choice_is_an_error_with_a_suggestion_and_its_place()
+    {
+        var result = Bind("output:\n  points: flaged");
+        Assert.False(result.IsSuccess);
+        Assert.Equal("kp-250.yaml:11:11: 'output.points' is 'flaged'; did you mean 'flagged'? The choices are: all, flagged, none. [recipe.bad_value]", Assert.Single(result.Problems).ToString());
+    }
+
+    [Fact]
+    public void A_yaml_boolean_for_output_points_is_an_error_not_a_silent_none()
+    {
+        var result = Bind("output:\n  points: no");
+        Assert.False(result.IsSuccess);
+        Assert.Contains("'output.points'", Assert.Single(result.Problems).Message, StringComparison.Ordinal);
+    }
+}

@@ -66,6 +66,8 @@ public sealed class RecipeSchemaBoundaryTests
           normality:
             test: shapiro-wilk
             p_min: 0.01
+        output:
+          points: all
         """;
 
     /// <summary>For the keys of an expression model, which refuses weights, resampling and the curvature gate.</summary>
@@ -126,6 +128,22 @@ public sealed class RecipeSchemaBoundaryTests
             Assert.True(Binds(path, max) == !spec.ExclusiveMaximum, $"{path} = {max}: the schema's maximum is {(spec.ExclusiveMaximum ? "exclusive" : "inclusive")}, the binder disagrees.");
             Assert.False(Binds(path, max + (step * Math.Max(1, Math.Abs(max)))), $"{path} just above its maximum {max} is accepted.");
         }
+    }
+
+    /// <summary>A key of choices (the schema's enum) binds each of its choices and refuses a text that is none of them.</summary>
+    [Theory]
+    [InlineData("output.points")]
+    [InlineData("resampling.bootstrap")]
+    public void A_key_of_choices_accepts_exactly_the_choices_the_schema_lists(string path)
+    {
+        var spec = Specs(RecipeSchema.Root, "").Single(s => s.Path == path).Spec;
+        Assert.NotEmpty(spec.Choices);
+        foreach (var choice in spec.Choices)
+        {
+            Assert.True(RecipeBinder.Bind("bounds.yaml", With(Recipe, path, choice), "h").IsSuccess, $"{path} = {choice} is refused.");
+        }
+
+        Assert.False(RecipeBinder.Bind("bounds.yaml", With(Recipe, path, "not-a-choice"), "h").IsSuccess);
     }
 
     private static bool Binds(string path, double value) =>

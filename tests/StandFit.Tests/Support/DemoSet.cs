@@ -22,9 +22,10 @@ public static class DemoSet
     public static int PublishedByWatch => Expected.Count - HeldByWatch.Count;
 
     /// <summary>A configuration file for a test: all folders under <paramref name="root"/>, the demo's recipes.</summary>
-    public static string WriteConfig(TempFolder root, int flushUnits = 5000)
+    public static string WriteConfig(TempFolder root, int flushUnits = 5000, double flushSeconds = 0)
     {
         var recipes = Recipes.Replace("\\", "/", StringComparison.Ordinal);
+        var seconds = flushSeconds.ToString(System.Globalization.CultureInfo.InvariantCulture);
         return root.File("standfit.yaml", $"""
             folders:
               inbox: inbox
@@ -37,6 +38,7 @@ public static class DemoSet
               poll_seconds: 0.2
             output:
               flush_units: {flushUnits}
+              flush_seconds: {seconds}
             """);
     }
 

@@ -5,7 +5,7 @@ namespace StandFit.Tests.Support;
 /// <summary>A configuration for worker tests: all folders under one root, the demo's recipes (or a copy), fast timings.</summary>
 public static class WorkerConfig
 {
-    public static string Write(TempFolder root, int flushUnits = 16, double stableSeconds = 0, string? recipes = null, string? workerId = "test-worker", double statusSeconds = 0.5, double faultLogSeconds = 3600, long maxFileBytes = 4194304, int? journalCompactUnits = null)
+    public static string Write(TempFolder root, int flushUnits = 16, double stableSeconds = 0, string? recipes = null, string? workerId = "test-worker", double statusSeconds = 0.5, double faultLogSeconds = 3600, long maxFileBytes = 4194304, int? journalCompactUnits = null, double flushSeconds = 0)
     {
         var recipeFolder = (recipes ?? DemoSet.Recipes).Replace("\\", "/", StringComparison.Ordinal);
         var id = workerId is null ? "" : $"\n  worker_id: {workerId}";
@@ -26,7 +26,8 @@ public static class WorkerConfig
               status_seconds: {statusSeconds}
               fault_log_seconds: {faultLogSeconds}{id}
             output:
-              flush_units: {flushUnits}{compact}
+              flush_units: {flushUnits}
+              flush_seconds: {flushSeconds}{compact}
             """));
     }
 }

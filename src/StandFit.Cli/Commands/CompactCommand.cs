@@ -1,0 +1,162 @@
+using System.Globalization;
+using StandFit.Core.Problems;
+using StandFit.Edges.Outputs;
+
+namespace StandFit.Cli.Commands;
+
+/// <summary><c>standfit compact</c>: merges each partition's small Parquet files into one (see <see cref="PartitionCompactor"/>).</summary>
+internal static class CompactCommand
+{
+    public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
+    {
+        var (parsed, problem) = Arguments.Parse(args, ["--output", "--table", "--from", "--to", "--min-age"], ["--help", "--dry-run"]);
+        if (parsed is not null && parsed.Has("--help"))
+        {
+            output.WriteLine(Help.Compact);
+            return ExitCodes.Ok;
+        }
+
+        if (parsed is null || parsed.Positional.Count > 0 || parsed.Value("--output") is null)
+        {
+            error.WriteLine("standfit compact: " + (problem ?? (parsed!.Positional.Count > 0 ? "unexpected argument " + parsed.Positional[0] : "--output OUTPUT_FOLDER is required")));
+            error.WriteLine(Help.Compact);
+            return ExitCodes.Usage;
+        }
+
+        CompactTable[] tables;
+        switch (parsed.Value("--table") ?? "all")
+        {
+            case "all": tables = [CompactTable.Summaries, CompactTable.Points, CompactTable.Runs]; break;
+            case "summaries": tables = [CompactTable.Summaries]; break;
+            case "points": tables = [CompactTable.Points]; break;
+            case "runs": tables = [CompactTable.Runs]; break;
+            case var other:
+                error.WriteLine("standfit compact: " + Messages.CompactBadTable(other));
+                return ExitCodes.Usage;
+        }
+
+        DateOnly? from = null;
+        DateOnly? to = null;
+        foreach (var option in new[] { "--from", "--to" })
+        {
+            if (parsed.Value(option) is not { } text)
+            {
+                continue;
+            }
+
+            if (!DateOnly.TryParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var day))
+            {
+                error.WriteLine("standfit compact: " + Messages.ReportBadDate(option, text));
+                return ExitCodes.Usage;
+            }
+
+            if (option == "--from")
+            {
+                from = day;
+            }
+            else
+            {
+                to = day;
+            }
+        }
+
+        if (from is { } f && to is { } t && f > t)
+        {
+            error.WriteLine("standfit compact: " + Messages.ReportDatesReversed(parsed.Value("--from")!, parsed.Value("--to")!));
+            return ExitCodes.Usage;
+        }
+
+        var minAge = 10.0;
+        if (parsed.Value("--min-age") is { } ageText
+            && !(double.TryParse(ageText, NumberStyles.Float, CultureInfo.InvariantCulture, out minAge) && minAge is >= 0 and <= 10080))
+        {
+            error.WriteLine("standfit compact: " + Messages.CompactBadMinAge(ageText));
+            return ExitCodes.Usage;
+        }
+
+        var folder = Path.GetFullPath(parsed.Value("--output")!);
+        if (!Directory.Exists(folder))
+        {
+            error.WriteLine("standfit compact: " + Messages.ReportNoOutputFolder(folder));
+            return ExitCodes.Invalid;
+        }
+
+        if (!tables.Any(table => Directory.Exists(Path.Combine(folder, PartitionCompactor.TableFolderName(table)))))
+        {
+            error.WriteLine("standfit compact: " + Messages.CompactNoTable(folder));
+            return ExitCodes.Invalid;
+        }
+
+        var dryRun = parsed.Has("--dry-run");
+        var compactor = new PartitionCompactor(folder, TimeProvider.System) { MinimumAge = TimeSpan.FromMinutes(minAge), DryRun = dryRun };
+        var locks = new List<IDisposable>();
+        try
+        {
+            foreach (var table in tables.Where(table => Directory.Exists(Path.Combine(folder, PartitionCompactor.TableFolderName(table)))))
+            {
+                locks.Add(compactor.Lock(table));
+            }
+
+            // The summaries and points of one date get one id, so that their merged files share a name as the batches' files do.
+            var ids = new Dictionary<string, string>(StringComparer.Ordinal);
+            var merged = 0;
+            foreach (var table in tables)
+            {
+                foreach (var partition in compactor.Folders(table, from, to))
+                {
+                    var key = Path.GetFileName(partition);
+                    if (!ids.TryGetValue(key, out var id))
+                    {
+                        ids[key] = id = compactor.NewId();
+                    }
+
+                    var result = await compactor.CompactAsync(table, partition, id).ConfigureAwait(false);
+                    Print(output, folder, result, dryRun);
+                    merged += result.Merged is null ? 0 : 1;
+                }
+            }
+
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"compact: {merged} folder(s) {(dryRun ? "would be merged (dry run, nothing changed)" : "merged")}"));
+            return ExitCodes.Ok;
+        }
+        catch (CompactBusyException e)
+        {
+            error.WriteLine("standfit compact: " + e.Message);
+            return ExitCodes.Configuration;
+        }
+        catch (Exception e) when (e is IOException or UnauthorizedAccessException or InvalidDataException)
+        {
+            error.WriteLine($"standfit compact: stopped ({e.Message}); the folders are left in a state the next compact (and every reader) resolves.");
+            return ExitCodes.OutputFault;
+        }
+        finally
+        {
+            foreach (var held in locks)
+            {
+                held.Dispose();
+            }
+        }
+    }
+
+    private static void Print(TextWriter output, string root, CompactionResult r, bool dryRun)
+    {
+        var where = Path.GetRelativePath(root, r.Folder).Replace('\\', '/');
+        if (r.Merged is null)
+        {
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{where}: nothing to merge{(r.Resolved > 0 ? $" ({r.Resolved} leftovers of a killed compaction resolved)" : "")}"));
+        }
+        else if (dryRun)
+        {
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{where}: would merge {r.Inputs.Count} files ({r.BytesBefore / 1024.0:F0} KiB) into {r.Merged}"));
+        }
+        else
+        {
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{where}: merged {r.Inputs.Count} files ({r.BytesBefore / 1024.0:F0} KiB) into {r.Merged} ({r.Rows} rows, {r.RowGroups} row group(s), {r.BytesAfter / 1024.0:F0} KiB)"));
+        }
+
+        foreach (var skipped in r.Skipped)
+        {
+            output.WriteLine("  left as it is: " + skipped);
+        }
+    }
+}
