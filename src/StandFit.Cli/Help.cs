@@ -24,7 +24,7 @@ public static class Help
         """;
 
     public const string Run = """
-        Usage: standfit run [--config FILE] [--from DIR] [--shard I/N] [--quiet]
+        Usage: standfit run [--config FILE] [--from DIR] [--shard I/N] [--quiet] [--stats]
 
         Processes every ready sweep file in the inbox, writes the summary Parquet and the pass/fail
         log, moves each input to archive/ or rejected/, prints one line per unit and the totals, and exits.
@@ -36,6 +36,13 @@ public static class Help
                           name: N processes or machines with I = 0 .. N-1 share one job, each file
                           judged by exactly one of them; each shard works as worker '<id>-shard-I-of-N'
           --quiet         print only the totals
+          --stats         also print, on standard error, the time per stage (read, parse, fit,
+                          diagnostics, resampling, judge, points, records, write, journal, log, move),
+                          the rate and the peak working set
+
+        On an interactive terminal, with --quiet or standard output redirected, one updating line
+        on standard error shows the units done, the rate and the time left; the operations log gets
+        a progress line (event 2010) every 10 seconds.
         """;
 
     public const string Watch = """

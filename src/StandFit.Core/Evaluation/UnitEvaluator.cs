@@ -25,19 +25,21 @@ public static class UnitEvaluator
     /// <param name="recipe">The recipe that judges it.</param>
     /// <param name="modelOverride">A model to fit instead of the recipe's.</param>
     /// <param name="sourceSha256">SHA-256 of the file's bytes (lower-case hex): with the serial and the recipe's seed it seeds the unit's resampling stream.</param>
-    public static UnitEvaluation Evaluate(SweepTable table, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null)
+    /// <param name="probe">Told as the unit finishes each stage (time per stage); null: nobody is told.</param>
+    public static UnitEvaluation Evaluate(SweepTable table, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null, IStageProbe? probe = null)
     {
         var assembled = SweepAssembler.Assemble(table, recipe.Columns, recipe.Format);
+        probe?.Done(EvaluationStage.Assemble);
         if (!assembled.IsSuccess)
         {
             var identity = SweepAssembler.ReadIdentity(table);
             return UnitEvaluation.Rejected(table.SourceName, assembled.Problems[0], identity.IsSuccess ? identity.Value : null, recipe);
         }
 
-        return Evaluate(table.SourceName, assembled.Value, recipe, modelOverride, sourceSha256);
+        return Evaluate(table.SourceName, assembled.Value, recipe, modelOverride, sourceSha256, probe);
     }
 
-    public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null)
+    public static UnitEvaluation Evaluate(string sourceName, Sweep sweep, Recipe recipe, LinearModel? modelOverride = null, string? sourceSha256 = null, IStageProbe? probe = null)
     {
         // A sweep no fit can use is rejected; a sweep that fails a data-quality gate is ruled retest.
         CurveModel model = modelOverride ?? recipe.Model;
@@ -89,6 +91,7 @@ public static class UnitEvaluator
             fit = fitted.Value;
         }
 
+        probe?.Done(EvaluationStage.Fit);
         var parameters = TIntervals.Compute(fit, recipe.Confidence);
         var derived = fit is FitResult linear ? DerivedEstimates.Compute(linear, recipe.Confidence) : [];
         var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
@@ -96,6 +99,7 @@ public static class UnitEvaluator
         var diagnostics = ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), recipe.DiagnosticsOptions);
         var curve = CurveFigures.Compute(fit, recipe);
         var figures = FigureTable.Compute(fit, parameters, derived, curve, runs, recipe, diagnostics);
+        probe?.Done(EvaluationStage.Diagnostics);
         var findings = new List<Finding>();
         ResamplingResult? resampling = null;
         if (recipe.Resampling is { } plan && fit is FitResult resampled)
@@ -105,6 +109,7 @@ public static class UnitEvaluator
             findings.AddRange(resampling.Findings);
         }
 
+        probe?.Done(EvaluationStage.Resampling);
         foreach (var limit in recipe.Limits)
         {
             if (!figures.TryGetValue(limit.Figure, out var figure))
@@ -128,6 +133,8 @@ public static class UnitEvaluator
             findings.Add(diagnosticGate.Judge(diagnostics, sweep.SourceLines));
         }
 
-        return UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling, diagnostics, curve);
+        var judged = UnitEvaluation.Judged(sourceName, recipe, sweep, fit, parameters, derived, runs, figures, Verdict.From(findings), resampling, diagnostics, curve);
+        probe?.Done(EvaluationStage.Judge);
+        return judged;
     }
 }

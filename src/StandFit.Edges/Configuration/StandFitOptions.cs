@@ -46,8 +46,8 @@ public sealed record StandFitOptions
     /// <summary>The status file: <c>output/status.json</c>, or <c>output/status-WORKER.json</c> when the worker id is configured.</summary>
     public string StatusFile => Path.Combine(Output, WorkerIdConfigured ? $"status-{WorkerId}.json" : "status.json");
 
-    /// <summary>The most units in one batch (one Parquet file per partition, one pass/fail log flush); a batch is published once this many wait (default 5000, at most <see cref="MaxFlushUnits"/>).</summary>
-    public int FlushUnits { get; init; } = 5000;
+    /// <summary>The most units in one batch (one Parquet file per partition, one pass/fail log flush); a batch is published once this many wait (default 1000, at most <see cref="MaxFlushUnits"/>; the next batch is judged while one is published, so up to two batches are in memory at once).</summary>
+    public int FlushUnits { get; init; } = 1000;
 
     /// <summary>The largest <see cref="FlushUnits"/> accepted.</summary>
     public const int MaxFlushUnits = 50_000;

@@ -57,6 +57,9 @@ public static partial class Log
     [LoggerMessage(EventId = 2009, Level = LogLevel.Warning, Message = "The runs table row {File} cannot be written: {Why}; summaries, points and the pass/fail log are not affected")]
     public static partial void RunRecordUnwritable(ILogger logger, string file, string why);
 
+    [LoggerMessage(EventId = 2010, Level = LogLevel.Information, Message = "Run progress: {Done} of {Total} units ({Percent:F1} %), {Rate:F0} units/s, {SecondsLeft:F0} s left")]
+    public static partial void RunProgress(ILogger logger, int done, int total, double percent, double rate, double secondsLeft);
+
     [LoggerMessage(EventId = 3001, Level = LogLevel.Information, Message = "Recipes loaded: {Count} in force from {Folder}")]
     public static partial void RecipesLoaded(ILogger logger, int count, string folder);
 

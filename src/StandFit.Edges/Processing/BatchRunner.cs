@@ -1,3 +1,4 @@
+using System.Diagnostics;
 using System.Globalization;
 using Microsoft.Extensions.Logging;
 using StandFit.Core.Judging;
@@ -128,6 +129,12 @@ public sealed class BatchRunner(
     /// <summary>Compact the journal once it holds this many units (<c>output.journal_compact_units</c>).</summary>
     public int JournalCompactUnits { get; init; } = PublishJournal.DefaultCompactUnits;
 
+    /// <summary>When set, the batch stages' time (claim, records, write, journal, log, move) is added here (<c>run --stats</c>).</summary>
+    public StageTimes? Times { get; init; }
+
+    /// <summary>Called once per input read and judged (or found unreadable), from the thread that did it (progress).</summary>
+    public Action? OnUnitDone { get; init; }
+
     public IInputIntake Intake => intake;
 
     public string WorkerId => workerId;
@@ -197,20 +204,47 @@ public sealed class BatchRunner(
             leftovers = [.. SkipHeld(intake.Leftovers()).Where(i => !_pendingPaths.Contains(i.Path))];
         }
 
-        for (var start = 0; start < leftovers.Count && !stop.IsCancellationRequested; start += batchSize)
+        // Two stages overlap: batch N+1 is judged (on all cores) while batch N is admitted to the
+        // waiting list and the batches due are published (one thread: Parquet, journal, log,
+        // moves), in input order. Judging is pure; holding, duplicates and retests are sorted out
+        // on the publishing thread, after every earlier batch is committed, so the overlap changes
+        // no row and no flush decision.
+        Task<JudgedBatch>? judging = null;
+        using var batches = Batches(leftovers, candidates).GetEnumerator();
+        try
         {
-            total.Add(Judge([.. leftovers.Skip(start).Take(batchSize)], stop));
-            total.Add(await PublishFullBatchesAsync().ConfigureAwait(false));
-        }
-
-        for (var start = 0; start < candidates.Count && !stop.IsCancellationRequested; start += batchSize)
-        {
-            var taken = intake.Take([.. candidates.Skip(start).Take(batchSize)]);
-            if (taken.Count > 0)
+            while (!stop.IsCancellationRequested && batches.MoveNext())
             {
-                total.Add(Judge(taken, stop));
+                var taken = batches.Current;
+                var takenAt = clock.GetUtcNow();
+                var next = Task.Run(() => Judge(taken, takenAt, stop), CancellationToken.None);
+                if (judging is not null)
+                {
+                    var previous = judging;
+                    judging = next;
+                    total.Add(Admit(await previous.ConfigureAwait(false)));
+                    total.Add(await PublishFullBatchesAsync().ConfigureAwait(false));
+                }
+                else
+                {
+                    judging = next;
+                }
+            }
+
+            if (judging is not null)
+            {
+                var last = judging;
+                judging = null;
+                total.Add(Admit(await last.ConfigureAwait(false)));
                 total.Add(await PublishFullBatchesAsync().ConfigureAwait(false));
             }
+        }
+        catch when (judging is not null)
+        {
+            // A batch could not be published: the one being judged is never admitted and stays
+            // claimed (a leftover for the next pass), like the waiting units already taken off.
+            await Task.WhenAny(judging).ConfigureAwait(false);
+            throw;
         }
 
         if (UntilFlush() == TimeSpan.Zero)
@@ -219,6 +253,32 @@ public sealed class BatchRunner(
         }
 
         return total;
+    }
+
+    /// <summary>The batches of a pass, taken as they are asked for: the leftovers, then the candidates claimed (those another worker took first left out).</summary>
+    private IEnumerable<IReadOnlyList<InputFile>> Batches(List<InputFile> leftovers, IReadOnlyList<string> candidates)
+    {
+        for (var start = 0; start < leftovers.Count; start += batchSize)
+        {
+            yield return leftovers.GetRange(start, Math.Min(batchSize, leftovers.Count - start));
+        }
+
+        for (var start = 0; start < candidates.Count; start += batchSize)
+        {
+            var chunk = new string[Math.Min(batchSize, candidates.Count - start)];
+            for (var i = 0; i < chunk.Length; i++)
+            {
+                chunk[i] = candidates[start + i];
+            }
+
+            var claimStarted = Stopwatch.GetTimestamp();
+            var taken = intake.Take(chunk);
+            Times?.Add(Stage.Claim, claimStarted);
+            if (taken.Count > 0)
+            {
+                yield return taken;
+            }
+        }
     }
 
     /// <summary>Publishes every waiting unit now, whatever its age (a clean stop of <c>watch</c>).</summary>
@@ -264,6 +324,13 @@ public sealed class BatchRunner(
             return taken;
         }
     }
+
+    /// <summary>
+    /// A batch judged, not yet admitted to the waiting list: each input's unit (null when a stop
+    /// came first, or unreadable), the inputs a stop came before, the counts so far, and when the
+    /// batch was taken (clock's UTC: the age the flush policy measures from).
+    /// </summary>
+    private sealed record JudgedBatch(ProcessedUnit?[] Processed, IReadOnlyList<InputFile> NotStarted, BatchCounts Counts, DateTimeOffset Taken);
 
     /// <summary>
     /// The leftovers to process: all but the inputs held for want of a recipe that were last read
@@ -389,8 +456,12 @@ public sealed class BatchRunner(
         return counts;
     }
 
-    /// <summary>Judges a chunk of inputs (in parallel) and adds the units to the waiting list; counts the skipped and newly held ones.</summary>
-    private BatchCounts Judge(IReadOnlyList<InputFile> batch, CancellationToken stop)
+    /// <summary>
+    /// Reads and judges a batch on all cores. Pure as far as the runner goes: it changes no
+    /// waiting list, hold or claim (only the unreadable-input log), so it can run while the
+    /// batch before it is published; <see cref="Admit"/> then takes its result in.
+    /// </summary>
+    private JudgedBatch Judge(IReadOnlyList<InputFile> batch, DateTimeOffset taken, CancellationToken stop)
     {
         var processed = new ProcessedUnit?[batch.Count];
         var counts = new BatchCounts();
@@ -413,8 +484,11 @@ public sealed class BatchRunner(
                 unreadable[i] = true;
                 LogUnreadable(batch[i].Name, e.Message);
             }
+
+            OnUnitDone?.Invoke();
         });
 
+        var notStarted = new List<InputFile>();
         for (var i = 0; i < batch.Count; i++)
         {
             if (unreadable[i])
@@ -423,11 +497,26 @@ public sealed class BatchRunner(
             }
             else if (processed[i] is null)
             {
-                intake.Release(batch[i]); // not started because of a stop: ready again
+                notStarted.Add(batch[i]);
             }
         }
 
-        var taken = clock.GetUtcNow();
+        return new JudgedBatch(processed, notStarted, counts, taken);
+    }
+
+    /// <summary>
+    /// On the publishing thread: gives back the inputs a stop came before, holds the units whose
+    /// part no recipe lists, and adds the rest to the waiting list with the time their batch was
+    /// taken; counts the skipped and newly held ones.
+    /// </summary>
+    private BatchCounts Admit(JudgedBatch judged)
+    {
+        var (processed, notStarted, counts, taken) = judged;
+        foreach (var input in notStarted)
+        {
+            intake.Release(input); // not started because of a stop: ready again
+        }
+
         foreach (var unit in processed.OfType<ProcessedUnit>())
         {
             if (!Hold(unit, counts))
@@ -455,6 +544,7 @@ public sealed class BatchRunner(
             return counts;
         }
 
+        var stageStarted = Stopwatch.GetTimestamp();
         var processedAt = clock.GetUtcNow().UtcDateTime;
         processedAt = new DateTime(processedAt.Ticks - (processedAt.Ticks % TimeSpan.TicksPerMillisecond), DateTimeKind.Utc);
         var journal = Journal;
@@ -511,7 +601,10 @@ public sealed class BatchRunner(
             published.Add((unit, record, published1));
         }
 
+        Times?.Add(Stage.Records, stageStarted);
+
         // Phase 1: the rows (summaries and points) on disk under temporary names. Phase 2: the commit line. Then the renames.
+        stageStarted = Stopwatch.GetTimestamp();
         var prepared = records.Count > 0 ? await summaries.PrepareAsync(records, points, CancellationToken.None).ConfigureAwait(false) : null;
         var committed = new JournalBatch
         {
@@ -520,6 +613,8 @@ public sealed class BatchRunner(
             Files = prepared is null ? [] : [.. prepared.RelativeFinals],
             Units = entries,
         };
+        Times?.Add(Stage.Write, stageStarted);
+        stageStarted = Stopwatch.GetTimestamp();
         try
         {
             journal.Commit(committed);
@@ -530,9 +625,17 @@ public sealed class BatchRunner(
             throw;
         }
 
+        Times?.Add(Stage.Journal, stageStarted);
+        stageStarted = Stopwatch.GetTimestamp();
         prepared?.Complete();
+        Times?.Add(Stage.Write, stageStarted);
+        stageStarted = Stopwatch.GetTimestamp();
         audit.AppendLines([.. entries.Select(e => e.Line)]);
+        Times?.Add(Stage.Log, stageStarted);
+        stageStarted = Stopwatch.GetTimestamp();
         journal.MarkLogged(committed.Id);
+        Times?.Add(Stage.Journal, stageStarted);
+        stageStarted = Stopwatch.GetTimestamp();
 
         foreach (var (unit, record, entry) in published)
         {
@@ -557,7 +660,10 @@ public sealed class BatchRunner(
             Log.UnitDuplicate(logger, name, record.UnitKey, firstAt, firstRuling);
         }
 
+        Times?.Add(Stage.Log, stageStarted);
+
         // Last: move each input on. A failure here leaves the rest claimed and committed: finished next pass.
+        stageStarted = Stopwatch.GetTimestamp();
         foreach (var (unit, record, entry) in published)
         {
             Dispose(unit.Input, entry, processedAt);
@@ -572,6 +678,7 @@ public sealed class BatchRunner(
             OnDuplicate?.Invoke(record);
         }
 
+        Times?.Add(Stage.Move, stageStarted);
         lock (_publishedGate)
         {
             _published.Add(counts);

@@ -65,7 +65,9 @@ public sealed class Pipeline : IDisposable
         Action<SummaryRecord>? onPublished = null,
         Action<SummaryRecord>? onDuplicate = null,
         bool holdUncoveredParts = false,
-        TimeSpan? flushAge = null)
+        TimeSpan? flushAge = null,
+        StageTimes? times = null,
+        Action? onUnitDone = null)
     {
         var logger = loggers.CreateLogger("StandFit");
         var workerLock = WorkerLock.Acquire(options.Output, options.WorkerId);
@@ -79,7 +81,7 @@ public sealed class Pipeline : IDisposable
 
             Log.RecipesLoaded(logger, catalog.Recipes.Length, options.Recipes);
             var recipes = new RecipeSource(options.Recipes, catalog, logger);
-            var processor = new UnitProcessor(new SweepFileReader(options.MaxFileBytes), () => recipes.Current, logger);
+            var processor = new UnitProcessor(new SweepFileReader(options.MaxFileBytes) { Times = times }, () => recipes.Current, logger) { Times = times };
             var startedAt = clock.GetUtcNow();
             var runId = ToolInfo.NewRunId(startedAt, options.WorkerId);
             var claims = mode == DispositionMode.Move ? new ClaimFolder(options.Inbox, options.WorkerId) : null;
@@ -103,6 +105,8 @@ public sealed class Pipeline : IDisposable
                 RepeatLogInterval = TimeSpan.FromSeconds(options.FaultLogSeconds),
                 JournalCompactUnits = options.JournalCompactUnits,
                 FlushAge = flushAge ?? TimeSpan.Zero,
+                Times = times,
+                OnUnitDone = onUnitDone,
             };
             return new Pipeline(workerLock, options, startedAt.UtcDateTime, recipes, processor, runner, claims);
         }

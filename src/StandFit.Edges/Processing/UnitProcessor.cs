@@ -40,23 +40,34 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
     /// <summary>When set, this model replaces the recipe's (exploration with <c>inspect --model</c>).</summary>
     public LinearModel? ModelOverride { get; init; }
 
+    /// <summary>When set, each unit's time per stage is added here (<c>run --stats</c>).</summary>
+    public StageTimes? Times { get; init; }
+
     public ProcessedUnit Process(string path) => Process(new InputFile(path, Path.GetFileName(path), null));
 
     /// <summary>Reads the input (its cell format chosen by the recipe its leading metadata names) and judges it.</summary>
     public ProcessedUnit Process(InputFile input)
     {
+        var times = Times;
+        if (times is not null)
+        {
+            StageTimes.Start();
+        }
+
         var catalog = recipes();
         var file = reader.Read(input.Path, metadata => RecipeOverride?.Format ?? catalog.FormatFor(metadata), input.Name);
         var evaluation = Evaluate(file, catalog);
         var uncovered = RecipeOverride is null ? catalog.UncoveredPart(file.Metadata) : null;
         try
         {
-            return new ProcessedUnit(input, file, evaluation)
+            var unit = new ProcessedUnit(input, file, evaluation)
             {
                 Points = evaluation.Recipe is { } r && !r.KeepsPoints(evaluation.Ruling) ? [] : PointRecordFactory.Create(evaluation, UnitKeys.Of(file.Sha256, evaluation.Recipe?.ContentHash)),
                 UncoveredPart = uncovered,
                 Catalog = catalog,
             };
+            times?.Lap(Stage.Points);
+            return unit;
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {
@@ -74,6 +85,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
 
     private UnitEvaluation Evaluate(SweepFile file, RecipeCatalog catalog)
     {
+        Times?.Lap(Stage.Parse);
         try
         {
             if (!file.Table.IsSuccess)
@@ -98,7 +110,7 @@ public sealed class UnitProcessor(SweepFileReader reader, Func<RecipeCatalog> re
                 return UnitEvaluation.Rejected(file.Name, mismatch, identity.IsSuccess ? identity.Value : null, recipe.Value);
             }
 
-            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride, file.Sha256);
+            return UnitEvaluator.Evaluate(table, recipe.Value, ModelOverride, file.Sha256, Times);
         }
         catch (Exception e) when (e is not OutOfMemoryException)
         {

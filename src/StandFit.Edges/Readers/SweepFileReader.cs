@@ -31,6 +31,9 @@ public sealed class SweepFileReader
 
     public long MaxFileBytes { get; }
 
+    /// <summary>When set, the time to read a file's bytes is added to its <c>read</c> stage.</summary>
+    public Processing.StageTimes? Times { get; init; }
+
     /// <param name="path">The file to read.</param>
     /// <param name="formatFor">Chooses the cell format from the leading metadata lines (the part's recipe); standard when null.</param>
     /// <param name="name">The name shown in messages and rows (the input's own name when it is read from a claimed copy).</param>
@@ -45,6 +48,7 @@ public sealed class SweepFileReader
         }
 
         var bytes = File.ReadAllBytes(path);
+        Times?.Lap(Processing.Stage.Read);
         return Parse(name, bytes, formatFor);
     }
 
