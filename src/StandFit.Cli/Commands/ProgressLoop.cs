@@ -11,11 +11,13 @@ namespace StandFit.Cli.Commands;
 /// </summary>
 internal static class ProgressLoop
 {
-    public static readonly TimeSpan LogInterval = TimeSpan.FromSeconds(10);
+    public static Task RunAsync(ProgressMeter meter, ILogger logger, TextWriter? terminal, CancellationToken stop) =>
+        RunAsync(meter, logger, terminal, TimeSpan.FromSeconds(1), 10, stop);
 
-    public static async Task RunAsync(ProgressMeter meter, ILogger logger, TextWriter? terminal, CancellationToken stop)
+    /// <summary>Shows the progress every <paramref name="tick"/> and logs it every <paramref name="logEvery"/> ticks.</summary>
+    public static async Task RunAsync(ProgressMeter meter, ILogger logger, TextWriter? terminal, TimeSpan tick, int logEvery, CancellationToken stop)
     {
-        using var timer = new PeriodicTimer(TimeSpan.FromSeconds(1));
+        using var timer = new PeriodicTimer(tick);
         var ticks = 0;
         var shown = 0;
         try
@@ -32,7 +34,7 @@ internal static class ProgressLoop
                     shown = line.Length;
                 }
 
-                if (ticks % (int)LogInterval.TotalSeconds == 0)
+                if (ticks % logEvery == 0)
                 {
                     Log.RunProgress(logger, reading.Done, reading.Total, reading.Percent, reading.Rate ?? 0, (reading.Remaining ?? TimeSpan.Zero).TotalSeconds);
                 }

@@ -50,6 +50,9 @@ public sealed class BatchRunner(
     int batchSize,
     ILogger logger) : IDisposable
 {
+    // A summary row's processing time until its batch is published (then the batch's time is set).
+    private static readonly DateTime NotYetPublished = DateTime.UnixEpoch;
+
     private readonly Dictionary<string, long> _unreadableLogged = new(StringComparer.Ordinal);
 
     // Claimed inputs held for want of a recipe: claim path -> (part, the recipes they were last read under).
@@ -62,7 +65,7 @@ public sealed class BatchRunner(
     private int _batchSequence;
 
     // Judged units waiting for their batch (claimed, not committed), oldest first, with when each was taken (clock's UTC).
-    private readonly List<(ProcessedUnit Unit, DateTimeOffset Taken)> _pending = [];
+    private readonly List<(JudgedUnit Unit, DateTimeOffset Taken)> _pending = [];
     private readonly HashSet<string> _pendingPaths = new(StringComparer.Ordinal);
 
     /// <summary>Called once per published unit, in input order (the command line prints these).</summary>
@@ -309,7 +312,7 @@ public sealed class BatchRunner(
     /// publishing them fails they are forgotten: their inputs stay claimed and are judged again as
     /// leftovers on the next pass.
     /// </summary>
-    private List<ProcessedUnit> TakePending(int count)
+    private List<JudgedUnit> TakePending(int count)
     {
         lock (_pending)
         {
@@ -330,7 +333,15 @@ public sealed class BatchRunner(
     /// came first, or unreadable), the inputs a stop came before, the counts so far, and when the
     /// batch was taken (clock's UTC: the age the flush policy measures from).
     /// </summary>
-    private sealed record JudgedBatch(ProcessedUnit?[] Processed, IReadOnlyList<InputFile> NotStarted, BatchCounts Counts, DateTimeOffset Taken);
+    private sealed record JudgedBatch(JudgedUnit?[] Processed, IReadOnlyList<InputFile> NotStarted, BatchCounts Counts, DateTimeOffset Taken);
+
+    /// <summary>
+    /// What publishing needs of a judged unit: its summary row (made on the judging thread; its
+    /// processing time is set when the batch is published), its point rows, its ruling and why. The
+    /// evaluation itself (fit, resampling replicates, the parsed table) is not kept, so the units
+    /// waiting for their batch, and the batch being published, hold little memory.
+    /// </summary>
+    private sealed record JudgedUnit(InputFile Input, string Name, Ruling Ruling, Problem? Problem, SummaryRecord Record, IReadOnlyList<PointRecord> Points, string? UncoveredPart, RecipeCatalog? Catalog);
 
     /// <summary>
     /// The leftovers to process: all but the inputs held for want of a recipe that were last read
@@ -361,7 +372,7 @@ public sealed class BatchRunner(
     /// Holds the unit when it names a part no recipe lists and holding is on: true when held. The
     /// warning is logged once per input, when it is first held.
     /// </summary>
-    private bool Hold(ProcessedUnit unit, BatchCounts counts)
+    private bool Hold(JudgedUnit unit, BatchCounts counts)
     {
         if (!HoldUncoveredParts || unit.UncoveredPart is not { } part || unit.Input.Claim is null || unit.Catalog is null)
         {
@@ -387,7 +398,7 @@ public sealed class BatchRunner(
     }
 
     /// <summary>Forgets a held input that has now been judged, and says so.</summary>
-    private void Unhold(ProcessedUnit unit)
+    private void Unhold(JudgedUnit unit)
     {
         string? part;
         lock (_held)
@@ -463,7 +474,7 @@ public sealed class BatchRunner(
     /// </summary>
     private JudgedBatch Judge(IReadOnlyList<InputFile> batch, DateTimeOffset taken, CancellationToken stop)
     {
-        var processed = new ProcessedUnit?[batch.Count];
+        var processed = new JudgedUnit?[batch.Count];
         var counts = new BatchCounts();
         var parallel = new ParallelOptions { MaxDegreeOfParallelism = Environment.ProcessorCount };
         var unreadable = new bool[batch.Count];
@@ -477,7 +488,10 @@ public sealed class BatchRunner(
 
             try
             {
-                processed[i] = processor.Process(batch[i]);
+                var unit = processor.Process(batch[i]);
+                var record = SummaryRecordFactory.Create(unit.Evaluation, unit.File.Sha256, NotYetPublished, toolVersion, unit.File.Metadata);
+                processed[i] = new JudgedUnit(unit.Input, unit.File.Name, unit.Evaluation.Ruling, unit.Evaluation.Problem, record, unit.Points, unit.UncoveredPart, unit.Catalog);
+                Times?.Lap(Stage.Records);
             }
             catch (Exception e) when (e is IOException or UnauthorizedAccessException)
             {
@@ -517,7 +531,7 @@ public sealed class BatchRunner(
             intake.Release(input); // not started because of a stop: ready again
         }
 
-        foreach (var unit in processed.OfType<ProcessedUnit>())
+        foreach (var unit in processed.OfType<JudgedUnit>())
         {
             if (!Hold(unit, counts))
             {
@@ -536,7 +550,7 @@ public sealed class BatchRunner(
     }
 
     /// <summary>Publishes judged units as one batch: duplicates and retests, Parquet files, commit, renames, pass/fail lines, then the inputs moved on.</summary>
-    private async Task<BatchCounts> PublishAsync(IReadOnlyList<ProcessedUnit> units)
+    private async Task<BatchCounts> PublishAsync(IReadOnlyList<JudgedUnit> units)
     {
         var counts = new BatchCounts();
         if (units.Count == 0)
@@ -551,13 +565,14 @@ public sealed class BatchRunner(
         var records = new List<SummaryRecord>(units.Count);
         var points = new List<PointRecord>();
         var entries = new List<JournalUnit>(units.Count);
-        var published = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry)>(units.Count);
-        var duplicates = new List<(ProcessedUnit Unit, SummaryRecord Record, JournalUnit Entry, string FirstAt, string FirstRuling)>();
+        var published = new List<(JudgedUnit Unit, SummaryRecord Record, JournalUnit Entry)>(units.Count);
+        var duplicates = new List<(JudgedUnit Unit, SummaryRecord Record, JournalUnit Entry, string FirstAt, string FirstRuling)>();
         var keysInBatch = new Dictionary<string, (DateTime At, string Ruling, string File)>(StringComparer.Ordinal);
         var latestInBatch = new Dictionary<string, string>(StringComparer.Ordinal);
         foreach (var unit in units)
         {
-            var record = SummaryRecordFactory.Create(unit.Evaluation, unit.File.Sha256, processedAt, toolVersion, unit.File.Metadata);
+            var record = unit.Record;
+            record.ProcessedAt = processedAt;
             var first = journal.Lookup(record.UnitKey);
             if (first is not null || keysInBatch.ContainsKey(record.UnitKey))
             {
@@ -566,7 +581,7 @@ public sealed class BatchRunner(
                 var why = firstFile is null ? Messages.DuplicateOfPublished(at, firstRuling, record.UnitKey) : Messages.Duplicate(at, firstFile, firstRuling);
                 var entry = Entry(unit, record, JournalOutcomes.Duplicate, PassFailLog.FormatLine(record, "duplicate", [ReasonCodes.InputDuplicate.Code]));
                 entry.Code = ReasonCodes.InputDuplicate.Code;
-                entry.Where = unit.File.Name;
+                entry.Where = unit.Name;
                 entry.Why = why;
                 entries.Add(entry);
                 duplicates.Add((unit, record, entry, at, firstRuling));
@@ -580,10 +595,10 @@ public sealed class BatchRunner(
                 latestInBatch[serialKey] = record.UnitKey;
             }
 
-            keysInBatch[record.UnitKey] = (processedAt, record.Ruling, unit.File.Name);
-            var outcome = unit.Evaluation.Ruling == Ruling.Rejected ? JournalOutcomes.Reject : JournalOutcomes.Archive;
+            keysInBatch[record.UnitKey] = (processedAt, record.Ruling, unit.Name);
+            var outcome = unit.Ruling == Ruling.Rejected ? JournalOutcomes.Reject : JournalOutcomes.Archive;
             var published1 = Entry(unit, record, outcome, PassFailLog.FormatLine(record));
-            if (unit.Evaluation.Problem is { } problem)
+            if (unit.Problem is { } problem)
             {
                 published1.Code = problem.Code;
                 published1.Where = problem.Location.ToString();
@@ -593,7 +608,7 @@ public sealed class BatchRunner(
             records.Add(record);
             if (unit.Points.Count > 0 && unit.Points[0].UnitKey != record.UnitKey)
             {
-                throw new InvalidOperationException($"The points of {unit.File.Name} carry the unit key {unit.Points[0].UnitKey}, its summary row {record.UnitKey}.");
+                throw new InvalidOperationException($"The points of {unit.Name} carry the unit key {unit.Points[0].UnitKey}, its summary row {record.UnitKey}.");
             }
 
             points.AddRange(unit.Points);
@@ -639,8 +654,8 @@ public sealed class BatchRunner(
 
         foreach (var (unit, record, entry) in published)
         {
-            var name = Printable.Of(unit.File.Name);
-            if (unit.Evaluation.Ruling == Ruling.Rejected)
+            var name = Printable.Of(unit.Name);
+            if (unit.Ruling == Ruling.Rejected)
             {
                 var where = Printable.Of(entry.Where);
                 var why = Printable.Of(entry.Why);
@@ -656,7 +671,7 @@ public sealed class BatchRunner(
 
         foreach (var (unit, record, _, firstAt, firstRuling) in duplicates)
         {
-            var name = Printable.Of(unit.File.Name);
+            var name = Printable.Of(unit.Name);
             Log.UnitDuplicate(logger, name, record.UnitKey, firstAt, firstRuling);
         }
 
@@ -667,7 +682,7 @@ public sealed class BatchRunner(
         foreach (var (unit, record, entry) in published)
         {
             Dispose(unit.Input, entry, processedAt);
-            counts.Add(unit.Evaluation.Ruling);
+            counts.Add(unit.Ruling);
             OnPublished?.Invoke(record);
         }
 
@@ -714,7 +729,7 @@ public sealed class BatchRunner(
         }
     }
 
-    private static JournalUnit Entry(ProcessedUnit unit, SummaryRecord record, string outcome, string line) => new()
+    private static JournalUnit Entry(JudgedUnit unit, SummaryRecord record, string outcome, string line) => new()
     {
         Claim = unit.Input.Claim,
         Name = unit.Input.Name,
