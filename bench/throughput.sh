@@ -18,8 +18,9 @@ folders:
   archive: archive
   rejected: rejected
   output: output
-  recipes: "$repo/config/recipes"
+  recipes: "${RECIPES:-$repo/bench/recipes}"
   logs: logs
 YAML
 echo "machine: $(nproc) cores, $(awk '/MemTotal/ {printf "%.0f GiB", $2/1048576}' /proc/meminfo), $(dotnet --version) SDK"
-/usr/bin/time -f "wall %e s, peak RSS %M KiB" dotnet "$repo/src/StandFit.Cli/bin/Release/net10.0/standfit.dll" run --config "$work/standfit.yaml" --quiet
+echo "load: $(cut -d" " -f1-3 /proc/loadavg)"
+/usr/bin/time -f "wall %e s, peak RSS %M KiB" dotnet "$repo/src/StandFit.Cli/bin/Release/net10.0/standfit.dll" run --config "$work/standfit.yaml" --quiet --stats
