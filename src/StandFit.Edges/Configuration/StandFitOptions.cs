@@ -46,7 +46,7 @@ public sealed record StandFitOptions
     /// <summary>The status file: <c>output/status.json</c>, or <c>output/status-WORKER.json</c> when the worker id is configured.</summary>
     public string StatusFile => Path.Combine(Output, WorkerIdConfigured ? $"status-{WorkerId}.json" : "status.json");
 
-    /// <summary>The most units in one batch (one Parquet file per partition, one pass/fail log flush); a batch is published once this many wait (default 1000, at most <see cref="MaxFlushUnits"/>; the next batch is judged while one is published, so up to two batches are in memory at once).</summary>
+    /// <summary>The most units in one batch (one Parquet file per partition, one pass/fail log flush); a batch is published once this many wait (default 1000, at most <see cref="MaxFlushUnits"/>; the next batch is judged while one is published, so two batches, besides the units waiting for a fuller batch, are in memory at once).</summary>
     public int FlushUnits { get; init; } = 1000;
 
     /// <summary>The largest <see cref="FlushUnits"/> accepted.</summary>

@@ -35,6 +35,13 @@ namespace StandFit.Edges.Processing;
 /// committed: a crash loses only their judgement, and their claimed inputs are judged again at the
 /// next start, as leftovers; the journal stays the commit point.
 /// </para>
+/// <para>
+/// Judging and publishing overlap: batch N+1 is read and judged on all cores (<see cref="Judge"/>,
+/// which changes no state of the runner) while batch N is admitted to the waiting list and the
+/// batches due are published, on one thread, in input order. A waiting unit keeps only its rows
+/// (<see cref="JudgedUnit"/>), so the batch published, the batch judged and the units waiting
+/// (fewer than one batch) are all that is held in memory.
+/// </para>
 /// </summary>
 public sealed class BatchRunner(
     UnitProcessor processor,

@@ -1,3 +1,4 @@
+using System.Globalization;
 using System.Text;
 using StandFit.Edges.Outputs;
 
@@ -202,6 +203,48 @@ public sealed class PassFailLogTests
             Assert.Equal(2, lines.Length);
             Assert.Contains("serial=SN-1001 ", lines[0], StringComparison.Ordinal);
             Assert.Contains("serial=SN-1002 ", lines[1], StringComparison.Ordinal);
+        }
+        finally
+        {
+            Directory.Delete(folder, recursive: true);
+        }
+    }
+
+    [Fact]
+    public void Appends_from_several_workers_at_once_to_one_day_file_lose_no_line_and_break_none()
+    {
+        // Several workers share one output folder, each with its own PassFailLog. .NET's
+        // FileMode.Append writes at the end the file had when the stream was opened, so without
+        // the lock concurrent appends write over each other (whole batches were lost).
+        const int Workers = 4, Batches = 50, PerBatch = 8;
+        var folder = Directory.CreateTempSubdirectory("standfit-passfail-").FullName;
+        try
+        {
+            var start = new Barrier(Workers);
+            Parallel.For(0, Workers, new ParallelOptions { MaxDegreeOfParallelism = Workers }, w =>
+            {
+                var log = new PassFailLog(folder);
+                start.SignalAndWait();
+                for (var b = 0; b < Batches; b++)
+                {
+                    var batch = new List<SummaryRecord>(PerBatch);
+                    for (var u = 0; u < PerBatch; u++)
+                    {
+                        var record = Record();
+                        record.Serial = string.Create(CultureInfo.InvariantCulture, $"W{w}-B{b:D2}-U{u}");
+                        batch.Add(record);
+                    }
+
+                    log.Append(batch);
+                }
+            });
+
+            var lines = File.ReadAllLines(Path.Combine(folder, "passfail", "passfail-2026-11-30.log"), Encoding.UTF8);
+            Assert.Equal(Workers * Batches * PerBatch, lines.Length);
+            var expected = Enumerable.Range(0, Workers * Batches * PerBatch)
+                .Select(i => string.Create(CultureInfo.InvariantCulture, $"W{i / (Batches * PerBatch)}-B{i / PerBatch % Batches:D2}-U{i % PerBatch}"));
+            Assert.Equal(expected.Order(StringComparer.Ordinal), lines.Select(l => System.Text.RegularExpressions.Regex.Match(l, " serial=([^ ]+) ").Groups[1].Value).Order(StringComparer.Ordinal));
+            Assert.All(lines, l => Assert.Matches("^2026-11-30T22:14:05.123Z PASS     serial=W[0-9]-B[0-9]{2}-U[0-9] part=KP-250 .* key=3f2a9c$", l));
         }
         finally
         {
