@@ -95,53 +95,53 @@ public static class CurveFigures
         switch (d.Kind)
         {
             case DerivedKind.SensitivityAt:
-            {
-                var s = CurveUse.SensitivityAt(fit, [d.At], level);
-                return new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, s.Value, s.StandardError, s.Low, s.High);
-            }
+                {
+                    var s = CurveUse.SensitivityAt(fit, [d.At], level);
+                    return new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, s.Value, s.StandardError, s.Low, s.High);
+                }
 
             case DerivedKind.ValueAt:
             case DerivedKind.BandAt:
-            {
-                double? u0 = null;
-                if (fit.IsWeighted && d.Kind == DerivedKind.BandAt)
                 {
-                    Span<double> gradient = stackalloc double[fit.ParameterCount];
-                    u0 = NewReadingUncertainty(recipe, fit.ValueAt([d.At], gradient));
-                    if (u0 is null)
+                    double? u0 = null;
+                    if (fit.IsWeighted && d.Kind == DerivedKind.BandAt)
                     {
-                        return NonFinite(d);
+                        Span<double> gradient = stackalloc double[fit.ParameterCount];
+                        u0 = NewReadingUncertainty(recipe, fit.ValueAt([d.At], gradient));
+                        if (u0 is null)
+                        {
+                            return NonFinite(d);
+                        }
                     }
-                }
 
-                var band = fit.IsWeighted && d.Kind == DerivedKind.ValueAt
-                    ? CurveUse.BandAt(fit, [d.At], level, 1.0)
-                    : CurveUse.BandAt(fit, [d.At], level, u0);
-                return d.Kind == DerivedKind.ValueAt
-                    ? new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, band.Fitted, band.MeanStandardError, band.ConfidenceLow, band.ConfidenceHigh)
-                    : new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, band.Fitted, band.MeanStandardError, band.ConfidenceLow, band.ConfidenceHigh, band.PredictionLow, band.PredictionHigh);
-            }
+                    var band = fit.IsWeighted && d.Kind == DerivedKind.ValueAt
+                        ? CurveUse.BandAt(fit, [d.At], level, 1.0)
+                        : CurveUse.BandAt(fit, [d.At], level, u0);
+                    return d.Kind == DerivedKind.ValueAt
+                        ? new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, band.Fitted, band.MeanStandardError, band.ConfidenceLow, band.ConfidenceHigh)
+                        : new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, band.Fitted, band.MeanStandardError, band.ConfidenceLow, band.ConfidenceHigh, band.PredictionLow, band.PredictionHigh);
+                }
 
             default:
-            {
-                double? u0 = null;
-                if (fit.IsWeighted)
                 {
-                    u0 = NewReadingUncertainty(recipe, d.At);
-                    if (u0 is null)
+                    double? u0 = null;
+                    if (fit.IsWeighted)
                     {
-                        return NonFinite(d);
+                        u0 = NewReadingUncertainty(recipe, d.At);
+                        if (u0 is null)
+                        {
+                            return NonFinite(d);
+                        }
                     }
-                }
 
-                var inverse = InversePrediction.Solve(fit, d.At, level, 1, u0);
-                return inverse.Status switch
-                {
-                    InverseStatus.Solved => new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, inverse.Stimulus, inverse.StandardError, inverse.WaldLow, inverse.WaldHigh, Slope: inverse.Slope, IntervalLow: inverse.IntervalLow, IntervalHigh: inverse.IntervalHigh),
-                    InverseStatus.OutsideRange => Missing(d, CurveFigureStatus.OutsideRange),
-                    _ => Missing(d, CurveFigureStatus.NotMonotonic),
-                };
-            }
+                    var inverse = InversePrediction.Solve(fit, d.At, level, 1, u0);
+                    return inverse.Status switch
+                    {
+                        InverseStatus.Solved => new CurveFigure(d.Name, d.Kind, d.At, CurveFigureStatus.Ok, inverse.Stimulus, inverse.StandardError, inverse.WaldLow, inverse.WaldHigh, Slope: inverse.Slope, IntervalLow: inverse.IntervalLow, IntervalHigh: inverse.IntervalHigh),
+                        InverseStatus.OutsideRange => Missing(d, CurveFigureStatus.OutsideRange),
+                        _ => Missing(d, CurveFigureStatus.NotMonotonic),
+                    };
+                }
         }
     }
 

@@ -1,7 +1,7 @@
 using System.Collections.Immutable;
+using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
-using StandFit.Core.Evaluation;
 using StandFit.Core.Judging;
 using StandFit.Core.Screening;
 using StandFit.Core.Uncertainty;

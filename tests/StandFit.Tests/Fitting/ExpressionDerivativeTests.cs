@@ -122,77 +122,77 @@ public sealed class ExpressionDerivativeTests
         switch (model)
         {
             case "exp-decay":
-            {
-                var e = Math.Exp(-b[1] * x);
-                return (b[0] * e, [e, -b[0] * x * e]);
-            }
+                {
+                    var e = Math.Exp(-b[1] * x);
+                    return (b[0] * e, [e, -b[0] * x * e]);
+                }
 
             case "logs":
                 return (Math.Log(b[0] * x) + Math.Log10(b[1] + x) + (Math.Log(b[2]) * x),
                     [1 / b[0], 1 / ((b[1] + x) * Math.Log(10)), x / b[2]]);
             case "sqrt":
-            {
-                var r = Math.Sqrt(b[0] + (x * x));
-                return (r, [0.5 / r]);
-            }
+                {
+                    var r = Math.Sqrt(b[0] + (x * x));
+                    return (r, [0.5 / r]);
+                }
 
             case "trig":
-            {
-                var t = Math.Tan(b[2] * x);
-                var c = Math.Cos(b[1] * x);
-                return (Math.Sin(b[0] * x) + (c * t),
-                    [x * Math.Cos(b[0] * x), -x * Math.Sin(b[1] * x) * t, c * x * (1 + (t * t))]);
-            }
+                {
+                    var t = Math.Tan(b[2] * x);
+                    var c = Math.Cos(b[1] * x);
+                    return (Math.Sin(b[0] * x) + (c * t),
+                        [x * Math.Cos(b[0] * x), -x * Math.Sin(b[1] * x) * t, c * x * (1 + (t * t))]);
+                }
 
             case "roszman":
-            {
-                // d/du atan(u) = 1 / (1 + u^2), u = b3 / (x - b4).
-                var d = x - b[3];
-                var u = b[2] / d;
-                var k = 1 / (1 + (u * u)) / Math.PI;
-                return (b[0] - (b[1] * x) - (Math.Atan(u) / Math.PI), [1, -x, -k / d, -k * b[2] / (d * d)]);
-            }
+                {
+                    // d/du atan(u) = 1 / (1 + u^2), u = b3 / (x - b4).
+                    var d = x - b[3];
+                    var u = b[2] / d;
+                    var k = 1 / (1 + (u * u)) / Math.PI;
+                    return (b[0] - (b[1] * x) - (Math.Atan(u) / Math.PI), [1, -x, -k / d, -k * b[2] / (d * d)]);
+                }
 
             case "powers":
-            {
-                var value = (b[0] * b[0]) + Math.Pow(x, b[1]) + Math.Pow(b[0], b[1]) + Math.Pow(b[0] * x, -0.5) + Math.Pow(x - b[0], 3) + (1 / b[0]);
-                var d1 = (2 * b[0]) + (b[1] * Math.Pow(b[0], b[1] - 1)) + (-0.5 * Math.Pow(b[0] * x, -1.5) * x) - (3 * (x - b[0]) * (x - b[0])) - (1 / (b[0] * b[0]));
-                var d2 = (Math.Pow(x, b[1]) * Math.Log(x)) + (Math.Pow(b[0], b[1]) * Math.Log(b[0]));
-                return (value, [d1, d2]);
-            }
+                {
+                    var value = (b[0] * b[0]) + Math.Pow(x, b[1]) + Math.Pow(b[0], b[1]) + Math.Pow(b[0] * x, -0.5) + Math.Pow(x - b[0], 3) + (1 / b[0]);
+                    var d1 = (2 * b[0]) + (b[1] * Math.Pow(b[0], b[1] - 1)) + (-0.5 * Math.Pow(b[0] * x, -1.5) * x) - (3 * (x - b[0]) * (x - b[0])) - (1 / (b[0] * b[0]));
+                    var d2 = (Math.Pow(x, b[1]) * Math.Log(x)) + (Math.Pow(b[0], b[1]) * Math.Log(b[0]));
+                    return (value, [d1, d2]);
+                }
 
             case "negative-base":
                 return (Math.Pow(b[0] - x, 3) + (b[0] * x * b[0] * x), [(3 * (b[0] - x) * (b[0] - x)) + (2 * b[0] * x * x)]);
             case "rational":
-            {
-                var den = b[1] + (x * x);
-                return (((b[0] + x) / den) + (x / b[1]) + (b[0] / 3), [(1 / den) + (1.0 / 3), (-(b[0] + x) / (den * den)) - (x / (b[1] * b[1]))]);
-            }
+                {
+                    var den = b[1] + (x * x);
+                    return (((b[0] + x) / den) + (x / b[1]) + (b[0] / 3), [(1 / den) + (1.0 / 3), (-(b[0] + x) / (den * den)) - (x / (b[1] * b[1]))]);
+                }
 
             case "rat43":
-            {
-                // f = b1 u^(-1/b4), u = 1 + exp(b2 - b3 x).
-                var e = Math.Exp(b[1] - (b[2] * x));
-                var u = 1 + e;
-                var f = b[0] * Math.Pow(u, -1 / b[3]);
-                var dU = -f / (b[3] * u);
-                return (f, [f / b[0], dU * e, dU * -x * e, f * Math.Log(u) / (b[3] * b[3])]);
-            }
+                {
+                    // f = b1 u^(-1/b4), u = 1 + exp(b2 - b3 x).
+                    var e = Math.Exp(b[1] - (b[2] * x));
+                    var u = 1 + e;
+                    var f = b[0] * Math.Pow(u, -1 / b[3]);
+                    var dU = -f / (b[3] * u);
+                    return (f, [f / b[0], dU * e, dU * -x * e, f * Math.Log(u) / (b[3] * b[3])]);
+                }
 
             case "thermistor":
-            {
-                var k = (1 / x) - (1 / 298.15);
-                var r = b[0] * Math.Exp(b[1] * k);
-                return (r, [r / b[0], r * k]);
-            }
+                {
+                    var k = (1 / x) - (1 / 298.15);
+                    var r = b[0] * Math.Exp(b[1] * k);
+                    return (r, [r / b[0], r * k]);
+                }
 
             case "bennett5":
-            {
-                // f = b1 (b2 + x)^(-1/b3).
-                var s = b[1] + x;
-                var f = b[0] * Math.Pow(s, -1 / b[2]);
-                return (f, [f / b[0], -f / (b[2] * s), f * Math.Log(s) / (b[2] * b[2])]);
-            }
+                {
+                    // f = b1 (b2 + x)^(-1/b3).
+                    var s = b[1] + x;
+                    var f = b[0] * Math.Pow(s, -1 / b[2]);
+                    return (f, [f / b[0], -f / (b[2] * s), f * Math.Log(s) / (b[2] * b[2])]);
+                }
 
             default:
                 throw new ArgumentOutOfRangeException(nameof(model), model, "No hand-written derivative.");

@@ -84,64 +84,64 @@ public sealed class ExpressionInputDerivativeTests
         switch (text)
         {
             case "y0 + span*(1 - exp(-x/tau))":
-            {
-                // s = span e / tau, e = exp(-x/tau); ds/dspan = e/tau; ds/dtau = span e (x - tau) / tau^3.
-                var (span, tau) = (b[1], b[2]);
-                var e = Math.Exp(-x / tau);
-                return (span * e / tau, [0.0, e / tau, span * e * (x - tau) / (tau * tau * tau)]);
-            }
+                {
+                    // s = span e / tau, e = exp(-x/tau); ds/dspan = e/tau; ds/dtau = span e (x - tau) / tau^3.
+                    var (span, tau) = (b[1], b[2]);
+                    var e = Math.Exp(-x / tau);
+                    return (span * e / tau, [0.0, e / tau, span * e * (x - tau) / (tau * tau * tau)]);
+                }
 
             case "R25*exp(beta*(1/x - 1/298.15))":
-            {
-                // s = -R25 beta E / x^2, E = exp(beta (1/x - 1/T0)); ds/dR25 = -beta E / x^2;
-                // ds/dbeta = -R25 E (1 + beta (1/x - 1/T0)) / x^2.
-                var (r25, beta) = (b[0], b[1]);
-                var u = (1 / x) - (1 / 298.15);
-                var e = Math.Exp(beta * u);
-                return (-r25 * beta * e / (x * x), [-beta * e / (x * x), -r25 * e * (1 + (beta * u)) / (x * x)]);
-            }
+                {
+                    // s = -R25 beta E / x^2, E = exp(beta (1/x - 1/T0)); ds/dR25 = -beta E / x^2;
+                    // ds/dbeta = -R25 E (1 + beta (1/x - 1/T0)) / x^2.
+                    var (r25, beta) = (b[0], b[1]);
+                    var u = (1 / x) - (1 / 298.15);
+                    var e = Math.Exp(beta * u);
+                    return (-r25 * beta * e / (x * x), [-beta * e / (x * x), -r25 * e * (1 + (beta * u)) / (x * x)]);
+                }
 
             case "a*b^x":
-            {
-                // s = a b^x ln b; ds/da = b^x ln b; ds/db = a x b^(x-1) ln b + a b^(x-1).
-                var (a, bb) = (b[0], b[1]);
-                var p = Math.Pow(bb, x);
-                return (a * p * Math.Log(bb), [p * Math.Log(bb), (a * x * Math.Pow(bb, x - 1) * Math.Log(bb)) + (a * Math.Pow(bb, x - 1))]);
-            }
+                {
+                    // s = a b^x ln b; ds/da = b^x ln b; ds/db = a x b^(x-1) ln b + a b^(x-1).
+                    var (a, bb) = (b[0], b[1]);
+                    var p = Math.Pow(bb, x);
+                    return (a * p * Math.Log(bb), [p * Math.Log(bb), (a * x * Math.Pow(bb, x - 1) * Math.Log(bb)) + (a * Math.Pow(bb, x - 1))]);
+                }
 
             case "c*sqrt(x) + d*log10(x) + e*atan(x/f)":
-            {
-                // s = c/(2 sqrt x) + d/(x ln 10) + e/(f (1 + (x/f)^2)); ds/df = -e (f^2 - x^2) / (f^2 + x^2)^2.
-                var (c, d, e, f) = (b[0], b[1], b[2], b[3]);
-                var q = 1 + ((x / f) * (x / f));
-                var s = (c / (2 * Math.Sqrt(x))) + (d / (x * Math.Log(10))) + (e / (f * q));
-                var ff = (f * f) + (x * x);
-                return (s, [1 / (2 * Math.Sqrt(x)), 1 / (x * Math.Log(10)), 1 / (f * q), -e * ((f * f) - (x * x)) / (ff * ff)]);
-            }
+                {
+                    // s = c/(2 sqrt x) + d/(x ln 10) + e/(f (1 + (x/f)^2)); ds/df = -e (f^2 - x^2) / (f^2 + x^2)^2.
+                    var (c, d, e, f) = (b[0], b[1], b[2], b[3]);
+                    var q = 1 + ((x / f) * (x / f));
+                    var s = (c / (2 * Math.Sqrt(x))) + (d / (x * Math.Log(10))) + (e / (f * q));
+                    var ff = (f * f) + (x * x);
+                    return (s, [1 / (2 * Math.Sqrt(x)), 1 / (x * Math.Log(10)), 1 / (f * q), -e * ((f * f) - (x * x)) / (ff * ff)]);
+                }
 
             case "(b1 + b2*x)/(1 + b3*x^2)":
-            {
-                // s = (b2 (1 + b3 x^2) - 2 b3 x (b1 + b2 x)) / D^2, D = 1 + b3 x^2;
-                // ds/db1 = -2 b3 x / D^2; ds/db2 = (1 - b3 x^2) / D^2;
-                // ds/db3 = (b2 x^2 - 2 x (b1 + b2 x)) / D^2 - 2 x^2 (b2 D - 2 b3 x (b1 + b2 x)) / D^3.
-                var (b1, b2, b3) = (b[0], b[1], b[2]);
-                var d = 1 + (b3 * x * x);
-                var n = b1 + (b2 * x);
-                var top = (b2 * d) - (2 * b3 * x * n);
-                var s = top / (d * d);
-                var dB3 = (((b2 * x * x) - (2 * x * n)) / (d * d)) - (2 * x * x * top / (d * d * d));
-                return (s, [-2 * b3 * x / (d * d), (1 - (b3 * x * x)) / (d * d), dB3]);
-            }
+                {
+                    // s = (b2 (1 + b3 x^2) - 2 b3 x (b1 + b2 x)) / D^2, D = 1 + b3 x^2;
+                    // ds/db1 = -2 b3 x / D^2; ds/db2 = (1 - b3 x^2) / D^2;
+                    // ds/db3 = (b2 x^2 - 2 x (b1 + b2 x)) / D^2 - 2 x^2 (b2 D - 2 b3 x (b1 + b2 x)) / D^3.
+                    var (b1, b2, b3) = (b[0], b[1], b[2]);
+                    var d = 1 + (b3 * x * x);
+                    var n = b1 + (b2 * x);
+                    var top = (b2 * d) - (2 * b3 * x * n);
+                    var s = top / (d * d);
+                    var dB3 = (((b2 * x * x) - (2 * x * n)) / (d * d)) - (2 * x * x * top / (d * d * d));
+                    return (s, [-2 * b3 * x / (d * d), (1 - (b3 * x * x)) / (d * d), dB3]);
+                }
 
             default:
-            {
-                // s = g w cos(w x) + 3 h cos(x)^2 sin(x) + k (1 + tan(x/4)^2) / 4;
-                // ds/dg = w cos(w x); ds/dw = g cos(w x) - g w x sin(w x); ds/dh = 3 cos^2 sin; ds/dk = (1 + tan^2)/4.
-                var (g, w, h, k) = (b[0], b[1], b[2], b[3]);
-                var t = Math.Tan(x / 4);
-                var s = (g * w * Math.Cos(w * x)) + (3 * h * Math.Cos(x) * Math.Cos(x) * Math.Sin(x)) + (k * (1 + (t * t)) / 4);
-                return (s, [w * Math.Cos(w * x), (g * Math.Cos(w * x)) - (g * w * x * Math.Sin(w * x)), 3 * Math.Cos(x) * Math.Cos(x) * Math.Sin(x), (1 + (t * t)) / 4]);
-            }
+                {
+                    // s = g w cos(w x) + 3 h cos(x)^2 sin(x) + k (1 + tan(x/4)^2) / 4;
+                    // ds/dg = w cos(w x); ds/dw = g cos(w x) - g w x sin(w x); ds/dh = 3 cos^2 sin; ds/dk = (1 + tan^2)/4.
+                    var (g, w, h, k) = (b[0], b[1], b[2], b[3]);
+                    var t = Math.Tan(x / 4);
+                    var s = (g * w * Math.Cos(w * x)) + (3 * h * Math.Cos(x) * Math.Cos(x) * Math.Sin(x)) + (k * (1 + (t * t)) / 4);
+                    return (s, [w * Math.Cos(w * x), (g * Math.Cos(w * x)) - (g * w * x * Math.Sin(w * x)), 3 * Math.Cos(x) * Math.Cos(x) * Math.Sin(x), (1 + (t * t)) / 4]);
+                }
         }
     }
 

@@ -24,72 +24,72 @@ internal static class ExpressionDifferentiator
                 return One(c);
             case Operation.Add:
             case Operation.Subtract:
-            {
-                var da = DependsOn(node.Left!, variable) ? Differentiate(node.Left!, variable) : null;
-                var db = DependsOn(node.Right!, variable) ? Differentiate(node.Right!, variable) : null;
-                if (db is null)
                 {
-                    return da!;
-                }
+                    var da = DependsOn(node.Left!, variable) ? Differentiate(node.Left!, variable) : null;
+                    var db = DependsOn(node.Right!, variable) ? Differentiate(node.Right!, variable) : null;
+                    if (db is null)
+                    {
+                        return da!;
+                    }
 
-                if (da is null)
-                {
-                    return node.Operation == Operation.Add ? db : ExpressionNode.Unary(Operation.Negate, db, c);
-                }
+                    if (da is null)
+                    {
+                        return node.Operation == Operation.Add ? db : ExpressionNode.Unary(Operation.Negate, db, c);
+                    }
 
-                return ExpressionNode.Binary(node.Operation, da, db, c);
-            }
+                    return ExpressionNode.Binary(node.Operation, da, db, c);
+                }
 
             case Operation.Multiply:
-            {
-                // (a b)' = a' b + a b'
-                var a = node.Left!;
-                var b = node.Right!;
-                var left = DependsOn(a, variable) ? Product(Differentiate(a, variable), b, c) : null;
-                var right = DependsOn(b, variable) ? Product(a, Differentiate(b, variable), c) : null;
-                return Sum(left, right, c);
-            }
+                {
+                    // (a b)' = a' b + a b'
+                    var a = node.Left!;
+                    var b = node.Right!;
+                    var left = DependsOn(a, variable) ? Product(Differentiate(a, variable), b, c) : null;
+                    var right = DependsOn(b, variable) ? Product(a, Differentiate(b, variable), c) : null;
+                    return Sum(left, right, c);
+                }
 
             case Operation.Divide:
-            {
-                // (a / b)' = a' / b - a b' / b^2
-                var a = node.Left!;
-                var b = node.Right!;
-                var left = DependsOn(a, variable) ? ExpressionNode.Binary(Operation.Divide, Differentiate(a, variable), b, c) : null;
-                ExpressionNode? right = null;
-                if (DependsOn(b, variable))
                 {
-                    var square = ExpressionNode.Binary(Operation.Power, b, Constant(2, c), c);
-                    right = ExpressionNode.Binary(Operation.Divide, Product(a, Differentiate(b, variable), c), square, c);
-                }
+                    // (a / b)' = a' / b - a b' / b^2
+                    var a = node.Left!;
+                    var b = node.Right!;
+                    var left = DependsOn(a, variable) ? ExpressionNode.Binary(Operation.Divide, Differentiate(a, variable), b, c) : null;
+                    ExpressionNode? right = null;
+                    if (DependsOn(b, variable))
+                    {
+                        var square = ExpressionNode.Binary(Operation.Power, b, Constant(2, c), c);
+                        right = ExpressionNode.Binary(Operation.Divide, Product(a, Differentiate(b, variable), c), square, c);
+                    }
 
-                return left is null ? ExpressionNode.Unary(Operation.Negate, right!, c) : right is null ? left : ExpressionNode.Binary(Operation.Subtract, left, right, c);
-            }
+                    return left is null ? ExpressionNode.Unary(Operation.Negate, right!, c) : right is null ? left : ExpressionNode.Binary(Operation.Subtract, left, right, c);
+                }
 
             case Operation.Power:
-            {
-                var a = node.Left!;
-                var b = node.Right!;
-                ExpressionNode? left = null;
-                ExpressionNode? right = null;
-                if (DependsOn(a, variable))
                 {
-                    // b a^(b-1) a'
-                    var lower = b.IsConstant
-                        ? Constant(DoubleDoubleMath.Subtract(b.Precise, DoubleDoubleMath.One), c)
-                        : ExpressionNode.Binary(Operation.Subtract, b, One(c), c);
-                    var power = ExpressionNode.Binary(Operation.Power, a, lower, c);
-                    left = Product(Product(b, power, c), Differentiate(a, variable), c);
-                }
+                    var a = node.Left!;
+                    var b = node.Right!;
+                    ExpressionNode? left = null;
+                    ExpressionNode? right = null;
+                    if (DependsOn(a, variable))
+                    {
+                        // b a^(b-1) a'
+                        var lower = b.IsConstant
+                            ? Constant(DoubleDoubleMath.Subtract(b.Precise, DoubleDoubleMath.One), c)
+                            : ExpressionNode.Binary(Operation.Subtract, b, One(c), c);
+                        var power = ExpressionNode.Binary(Operation.Power, a, lower, c);
+                        left = Product(Product(b, power, c), Differentiate(a, variable), c);
+                    }
 
-                if (DependsOn(b, variable))
-                {
-                    // a^b ln(a) b'
-                    right = Product(Product(node, ExpressionNode.Unary(Operation.Ln, a, c), c), Differentiate(b, variable), c);
-                }
+                    if (DependsOn(b, variable))
+                    {
+                        // a^b ln(a) b'
+                        right = Product(Product(node, ExpressionNode.Unary(Operation.Ln, a, c), c), Differentiate(b, variable), c);
+                    }
 
-                return Sum(left, right, c);
-            }
+                    return Sum(left, right, c);
+                }
 
             case Operation.Negate:
                 return ExpressionNode.Unary(Operation.Negate, Differentiate(node.Left!, variable), c);
