@@ -151,6 +151,11 @@ public sealed class ParquetSummaryWriter : ISummarySink
     public bool RollForward(string relativeFinal)
     {
         var final = Absolute(relativeFinal);
+        if (!Directory.Exists(TableFolderOf(final)))
+        {
+            return false;
+        }
+
         using var held = PublishLock.Shared(TableFolderOf(final));
         if (File.Exists(final))
         {

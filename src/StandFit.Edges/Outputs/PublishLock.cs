@@ -17,7 +17,7 @@ public static class PublishLock
     /// <summary>How long a writer waits for a compaction's swap before it gives up with an <see cref="IOException"/> (the swap itself takes milliseconds).</summary>
     public static readonly TimeSpan WriterWait = TimeSpan.FromSeconds(30);
 
-    /// <summary>Takes the lock shared, waiting up to <paramref name="wait"/> (default <see cref="WriterWait"/>) for an exclusive holder. Creates the table folder if needed.</summary>
+    /// <summary>Takes the lock shared, waiting up to <paramref name="wait"/> (default <see cref="WriterWait"/>) for an exclusive holder. Creates the table folder if needed (never the output folder: a missing one throws <see cref="DirectoryNotFoundException"/>).</summary>
     public static IDisposable Shared(string tableFolder, TimeSpan? wait = null) =>
         Acquire(tableFolder, exclusive: false, wait ?? WriterWait)
         ?? throw new IOException($"{Path.Combine(tableFolder, FileName)} stayed held by a compaction's swap for over {(wait ?? WriterWait).TotalSeconds:F0} s; the files are written at the next try.");
@@ -27,7 +27,17 @@ public static class PublishLock
 
     private static FileStream? Acquire(string tableFolder, bool exclusive, TimeSpan wait)
     {
-        Directory.CreateDirectory(tableFolder);
+        if (!Directory.Exists(tableFolder))
+        {
+            var output = Path.GetDirectoryName(Path.GetFullPath(tableFolder));
+            if (output is null || !Directory.Exists(output))
+            {
+                throw new DirectoryNotFoundException($"The output folder {output} does not exist (removed, or a share not mounted).");
+            }
+
+            Directory.CreateDirectory(tableFolder);
+        }
+
         var path = Path.Combine(tableFolder, FileName);
         var deadline = DateTime.UtcNow + wait;
         var pause = 1;

@@ -657,6 +657,35 @@ public sealed class CompactionTests(ITestOutputHelper log)
     }
 
     [LinuxFact]
+    public async Task The_old_folder_of_a_swap_is_kept_whole_for_the_grace_and_deleted_by_a_compaction_after_it()
+    {
+        using var root = new TempFolder();
+        var options = await DemoOutputAsync(root);
+        var clock = new ManualClock(DateTimeOffset.UtcNow.AddMinutes(1));
+        var compactor = new PartitionCompactor(options.Output, clock) { MinimumAge = TimeSpan.Zero };
+        var partition = Directory.GetDirectories(Path.Combine(options.Output, "summaries")).Order(StringComparer.Ordinal).First();
+        var before = Directory.GetFiles(partition, "*.parquet").Select(Path.GetFileName).Order(StringComparer.Ordinal).ToList();
+        using (compactor.Lock(CompactTable.Summaries))
+        {
+            Assert.Equal(CompactProtocol.Swap, (await compactor.CompactAsync(CompactTable.Summaries, partition, compactor.NewId())).Protocol);
+
+            // The old directory, retired: exactly the files the live folder held before (the inputs), unchanged.
+            var retired = Assert.Single(Directory.GetDirectories(Path.Combine(options.Output, PartitionCompactor.StagingFolderName)));
+            Assert.Contains(".retired~", retired, StringComparison.Ordinal);
+            Assert.Equal(before, Directory.GetFiles(retired, "*.parquet").Select(Path.GetFileName).Order(StringComparer.Ordinal).ToList());
+
+            clock.Advance(TimeSpan.FromMinutes(9));
+            Assert.Equal(0, compactor.SweepRetired(CompactTable.Summaries));
+            Assert.True(Directory.Exists(retired));
+            clock.Advance(TimeSpan.FromMinutes(1));
+            Assert.Equal(1, compactor.SweepRetired(CompactTable.Summaries));
+            Assert.False(Directory.Exists(retired));
+        }
+
+        Assert.Equal(DemoSet.Expected.Count, Scalar($"SELECT count(*) AS n FROM read_parquet({Glob(options.Output, "summaries")})"));
+    }
+
+    [LinuxFact]
     public async Task A_file_system_that_refuses_the_swap_gets_the_file_protocol_and_the_result_says_why()
     {
         using var root = new TempFolder();
