@@ -88,8 +88,10 @@ public static class Help
         Merges the small Parquet files of each date= partition (summaries, points) and of the runs
         folder into one file per folder, so that readers open few large files. Safe while workers
         write to the same folders: only published files last written at least --min-age ago are
-        merged, and a reader never sees a row twice or missing (see docs/outputs.md). A kill at any
-        step is resolved by the next compact.
+        merged. On Linux each folder is swapped for the merged one in one step, so every reader, a
+        plain DuckDB glob too, sees each row once; on Windows the merged file is renamed in and the
+        inputs deleted, and a plain SQL reader must follow the reader rule (see docs/outputs.md).
+        A kill at any step is resolved by the next compact.
 
           --output FOLDER    the output folder (the configuration's folders.output)
           --table TABLE      summaries, points, runs or all (default: all)

@@ -9,18 +9,9 @@ internal static class CompactCommand
 {
     public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
     {
-        var (parsed, problem) = Arguments.Parse(args, ["--output", "--table", "--from", "--to", "--min-age"], ["--help", "--dry-run"]);
-        if (parsed is not null && parsed.Has("--help"))
+        if (OutputOptions.Parse("compact", Help.Compact, args, ["--table", "--from", "--to", "--min-age"], ["--dry-run"], output, error, out var exit) is not { } parsed)
         {
-            output.WriteLine(Help.Compact);
-            return ExitCodes.Ok;
-        }
-
-        if (parsed is null || parsed.Positional.Count > 0 || parsed.Value("--output") is null)
-        {
-            error.WriteLine("standfit compact: " + (problem ?? (parsed!.Positional.Count > 0 ? "unexpected argument " + parsed.Positional[0] : "--output OUTPUT_FOLDER is required")));
-            error.WriteLine(Help.Compact);
-            return ExitCodes.Usage;
+            return exit;
         }
 
         CompactTable[] tables;
@@ -35,34 +26,8 @@ internal static class CompactCommand
                 return ExitCodes.Usage;
         }
 
-        DateOnly? from = null;
-        DateOnly? to = null;
-        foreach (var option in new[] { "--from", "--to" })
+        if (!OutputOptions.TryDates("compact", parsed, error, out var from, out var to))
         {
-            if (parsed.Value(option) is not { } text)
-            {
-                continue;
-            }
-
-            if (!DateOnly.TryParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var day))
-            {
-                error.WriteLine("standfit compact: " + Messages.ReportBadDate(option, text));
-                return ExitCodes.Usage;
-            }
-
-            if (option == "--from")
-            {
-                from = day;
-            }
-            else
-            {
-                to = day;
-            }
-        }
-
-        if (from is { } f && to is { } t && f > t)
-        {
-            error.WriteLine("standfit compact: " + Messages.ReportDatesReversed(parsed.Value("--from")!, parsed.Value("--to")!));
             return ExitCodes.Usage;
         }
 
@@ -74,10 +39,8 @@ internal static class CompactCommand
             return ExitCodes.Usage;
         }
 
-        var folder = Path.GetFullPath(parsed.Value("--output")!);
-        if (!Directory.Exists(folder))
+        if (OutputOptions.ExistingFolder("compact", parsed, error) is not { } folder)
         {
-            error.WriteLine("standfit compact: " + Messages.ReportNoOutputFolder(folder));
             return ExitCodes.Invalid;
         }
 
@@ -114,6 +77,9 @@ internal static class CompactCommand
                     Print(output, folder, result, dryRun);
                     merged += result.Merged is null ? 0 : 1;
                 }
+
+                // Old folders of earlier swaps, past their grace (also of partitions outside --from/--to).
+                compactor.SweepRetired(table);
             }
 
             output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"compact: {merged} folder(s) {(dryRun ? "would be merged (dry run, nothing changed)" : "merged")}"));
@@ -151,7 +117,10 @@ internal static class CompactCommand
         }
         else
         {
-            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{where}: merged {r.Inputs.Count} files ({r.BytesBefore / 1024.0:F0} KiB) into {r.Merged} ({r.Rows} rows, {r.RowGroups} row group(s), {r.BytesAfter / 1024.0:F0} KiB)"));
+            var how = r.Protocol == CompactProtocol.Swap
+                ? "folder swapped in one step"
+                : "renamed in, then the inputs deleted: readers must follow the reader rule" + (r.SwapRefused is { } why ? $"; no swap: {why}" : "");
+            output.WriteLine(string.Create(CultureInfo.InvariantCulture, $"{where}: merged {r.Inputs.Count} files ({r.BytesBefore / 1024.0:F0} KiB) into {r.Merged} ({r.Rows} rows, {r.RowGroups} row group(s), {r.BytesAfter / 1024.0:F0} KiB; {how})"));
         }
 
         foreach (var skipped in r.Skipped)

@@ -12,55 +12,18 @@ internal static class ReportCommand
 {
     public static async Task<int> ExecuteAsync(string[] args, TextWriter output, TextWriter error)
     {
-        var (parsed, problem) = Arguments.Parse(args, ["--output", "--from", "--to", "--out"], ["--help"]);
-        if (parsed is not null && parsed.Has("--help"))
+        if (OutputOptions.Parse("report", Help.Report, args, ["--from", "--to", "--out"], [], output, error, out var exit) is not { } parsed)
         {
-            output.WriteLine(Help.Report);
-            return ExitCodes.Ok;
+            return exit;
         }
 
-        if (parsed is null || parsed.Positional.Count > 0 || parsed.Value("--output") is null)
+        if (!OutputOptions.TryDates("report", parsed, error, out var from, out var to))
         {
-            error.WriteLine("standfit report: " + (problem ?? (parsed!.Positional.Count > 0 ? "unexpected argument " + parsed.Positional[0] : "--output OUTPUT_FOLDER is required")));
-            error.WriteLine(Help.Report);
             return ExitCodes.Usage;
         }
 
-        DateOnly? from = null;
-        DateOnly? to = null;
-        foreach (var option in new[] { "--from", "--to" })
+        if (OutputOptions.ExistingFolder("report", parsed, error) is not { } folder)
         {
-            if (parsed.Value(option) is not { } text)
-            {
-                continue;
-            }
-
-            if (!DateOnly.TryParseExact(text, "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var day))
-            {
-                error.WriteLine("standfit report: " + Messages.ReportBadDate(option, text));
-                return ExitCodes.Usage;
-            }
-
-            if (option == "--from")
-            {
-                from = day;
-            }
-            else
-            {
-                to = day;
-            }
-        }
-
-        if (from is { } f && to is { } t && f > t)
-        {
-            error.WriteLine("standfit report: " + Messages.ReportDatesReversed(parsed.Value("--from")!, parsed.Value("--to")!));
-            return ExitCodes.Usage;
-        }
-
-        var folder = Path.GetFullPath(parsed.Value("--output")!);
-        if (!Directory.Exists(folder))
-        {
-            error.WriteLine("standfit report: " + Messages.ReportNoOutputFolder(folder));
             return ExitCodes.Invalid;
         }
 

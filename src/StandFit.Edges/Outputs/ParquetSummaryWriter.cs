@@ -14,7 +14,9 @@ namespace StandFit.Edges.Outputs;
 /// folder and flushes it to disk; <see cref="PreparedSummaries.Complete"/> renames them to their
 /// final names (atomic within one volume). The journal names both kinds of file, so recovery
 /// renames both: a unit's points are published exactly when its summary row is. A reader globbing
-/// <c>*.parquet</c> never sees a half-written file, and a file is never overwritten.
+/// <c>*.parquet</c> never sees a half-written file, and a file is never overwritten. From the first
+/// temporary file to the last rename the writer holds the tables' <see cref="PublishLock"/> shared,
+/// so that <c>standfit compact</c> never swaps a partition folder while a file is in flight into it.
 /// </summary>
 public sealed class ParquetSummaryWriter : ISummarySink
 {
@@ -91,6 +93,16 @@ public sealed class ParquetSummaryWriter : ISummarySink
         var prepared = new PreparedSummaries(this);
         try
         {
+            if (records.Count > 0)
+            {
+                prepared.Hold(PublishLock.Shared(_root));
+            }
+
+            if (points.Count > 0)
+            {
+                prepared.Hold(PublishLock.Shared(_pointsRoot));
+            }
+
             foreach (var group in records.GroupBy(PartitionOf).OrderBy(g => g.Key, StringComparer.Ordinal))
             {
                 var sequence = Interlocked.Increment(ref _sequence);
@@ -139,6 +151,12 @@ public sealed class ParquetSummaryWriter : ISummarySink
     public bool RollForward(string relativeFinal)
     {
         var final = Absolute(relativeFinal);
+        if (!Directory.Exists(TableFolderOf(final)))
+        {
+            return false;
+        }
+
+        using var held = PublishLock.Shared(TableFolderOf(final));
         if (File.Exists(final))
         {
             return true;
@@ -154,6 +172,9 @@ public sealed class ParquetSummaryWriter : ISummarySink
         return true;
     }
 
+    /// <summary>The table folder (<c>summaries</c> or <c>points</c>) of a file in one of its partitions.</summary>
+    private static string TableFolderOf(string file) => Path.GetDirectoryName(Path.GetDirectoryName(file)!)!;
+
     /// <summary>Deletes this worker's temporary files (summaries and points) that no journal entry needs (a crash before the entry was written).</summary>
     public int DeleteOrphans(IReadOnlySet<string> keepRelativeFinals)
     {
@@ -165,6 +186,7 @@ public sealed class ParquetSummaryWriter : ISummarySink
                 continue;
             }
 
+            using var held = PublishLock.Shared(root);
             foreach (var temporary in Directory.EnumerateFiles(root, _temporaryPrefix + "*.tmp", SearchOption.AllDirectories))
             {
                 var name = Path.GetFileName(temporary);
@@ -181,11 +203,16 @@ public sealed class ParquetSummaryWriter : ISummarySink
     }
 }
 
-/// <summary>Summary and point files written and flushed under temporary names, waiting to be renamed.</summary>
+/// <summary>
+/// Summary and point files written and flushed under temporary names, waiting to be renamed. Holds
+/// the tables' <see cref="PublishLock"/> shared until <see cref="Complete"/> or <see cref="Abandon"/>
+/// (the system releases it if the process dies).
+/// </summary>
 public sealed class PreparedSummaries
 {
     private readonly ParquetSummaryWriter _writer;
     private readonly List<(string Temporary, string Final)> _files = [];
+    private readonly List<IDisposable> _locks = [];
 
     internal PreparedSummaries(ParquetSummaryWriter writer) => _writer = writer;
 
@@ -194,19 +221,28 @@ public sealed class PreparedSummaries
 
     internal void Add(string temporary, string final) => _files.Add((temporary, final));
 
-    /// <summary>Renames every file to its final name (already renamed ones are left as they are).</summary>
+    internal void Hold(IDisposable publishLock) => _locks.Add(publishLock);
+
+    /// <summary>Renames every file to its final name (already renamed ones are left as they are), then releases the publish locks.</summary>
     public void Complete()
     {
-        foreach (var (temporary, final) in _files)
+        try
         {
-            if (!File.Exists(final))
+            foreach (var (temporary, final) in _files)
             {
-                File.Move(temporary, final, overwrite: false);
+                if (!File.Exists(final))
+                {
+                    File.Move(temporary, final, overwrite: false);
+                }
             }
+        }
+        finally
+        {
+            Release();
         }
     }
 
-    /// <summary>Removes the temporary files (the batch was not committed).</summary>
+    /// <summary>Removes the temporary files (the batch was not committed), then releases the publish locks.</summary>
     public void Abandon()
     {
         foreach (var (temporary, _) in _files)
@@ -220,5 +256,17 @@ public sealed class PreparedSummaries
                 // The name is hidden and never read; the next start deletes it.
             }
         }
+
+        Release();
+    }
+
+    private void Release()
+    {
+        foreach (var held in _locks)
+        {
+            held.Dispose();
+        }
+
+        _locks.Clear();
     }
 }

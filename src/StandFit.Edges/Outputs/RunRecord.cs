@@ -140,7 +140,7 @@ public sealed class RunRecorder(string outputFolder, string runId, string comman
             }
 
             var folder = Path.GetDirectoryName(File)!;
-            Directory.CreateDirectory(folder);
+            using var held = PublishLock.Shared(folder); // never in flight while compact swaps the runs folder
             var temporary = Path.Combine(folder, "." + runId + ".parquet.tmp");
             try
             {

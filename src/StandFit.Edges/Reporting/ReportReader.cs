@@ -27,14 +27,16 @@ public static class ReportReader
         var rows = new List<ReportedUnit>();
         var fileOf = new Dictionary<string, string>(StringComparer.Ordinal);
         var summaries = Path.Combine(outputFolder, "summaries");
-        foreach (var file in Partitioned(summaries, from, to))
+        foreach (var partition in PartitionFolders(summaries, from, to))
         {
-            var read = await TryReadAsync<SummaryRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false);
-            var relative = Path.GetRelativePath(summaries, file);
-            foreach (var row in read)
+            foreach (var (file, read) in await ReadFolderAsync<SummaryRow>(partition, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
             {
-                rows.Add(ToUnit(row));
-                fileOf[row.UnitKey] = relative;
+                var relative = Path.GetRelativePath(summaries, file);
+                foreach (var row in read)
+                {
+                    rows.Add(ToUnit(row));
+                    fileOf[row.UnitKey] = relative;
+                }
             }
         }
 
@@ -52,7 +54,14 @@ public static class ReportReader
             var file = Path.Combine(pointsFolder, relative);
             if (File.Exists(file) && seen.Add(file))
             {
-                await ReadPointsAsync(file, outputFolder, drawn, points, unreadable, cancellationToken).ConfigureAwait(false);
+                try
+                {
+                    AddPoints(await TryReadAsync<PointRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false), drawn, points);
+                }
+                catch (Exception e) when (e is FileNotFoundException or DirectoryNotFoundException)
+                {
+                    // Merged away by a compaction since the summaries were read: its units are looked for in their partition below.
+                }
             }
         }
 
@@ -65,11 +74,11 @@ public static class ReportReader
                 continue;
             }
 
-            foreach (var file in Published(folder))
+            foreach (var (file, read) in await ReadFolderAsync<PointRow>(folder, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
             {
                 if (seen.Add(file))
                 {
-                    await ReadPointsAsync(file, outputFolder, drawn, points, unreadable, cancellationToken).ConfigureAwait(false);
+                    AddPoints(read, drawn, points);
                 }
             }
         }
@@ -78,9 +87,9 @@ public static class ReportReader
         var runsFolder = Path.Combine(outputFolder, "runs");
         if (Directory.Exists(runsFolder))
         {
-            foreach (var file in Published(runsFolder))
+            foreach (var (_, read) in await ReadFolderAsync<RunRecord>(runsFolder, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
             {
-                foreach (var r in await TryReadAsync<RunRecord>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
+                foreach (var r in read)
                 {
                     var day = DateOnly.FromDateTime(r.StartedAt.ToUniversalTime());
                     if ((from is null || day >= from) && (to is null || day <= to))
@@ -104,8 +113,8 @@ public static class ReportReader
         };
     }
 
-    /// <summary>The published Parquet files of a partitioned table (<c>date=YYYY-MM-DD</c> folders) within the range, in name order; never a hidden temporary file.</summary>
-    public static IEnumerable<string> Partitioned(string tableFolder, DateOnly? from, DateOnly? to)
+    /// <summary>The partition folders (<c>date=YYYY-MM-DD</c>) of a partitioned table within the range, in date order.</summary>
+    public static IReadOnlyList<string> PartitionFolders(string tableFolder, DateOnly? from, DateOnly? to)
     {
         if (!Directory.Exists(tableFolder))
         {
@@ -116,8 +125,44 @@ public static class ReportReader
             .Select(d => (Folder: d, Ok: DateOnly.TryParseExact(Path.GetFileName(d)["date=".Length..], "yyyy-MM-dd", CultureInfo.InvariantCulture, DateTimeStyles.None, out var day), Day: day))
             .Where(d => d.Ok && (from is null || d.Day >= from) && (to is null || d.Day <= to))
             .OrderBy(d => d.Day)
-            .SelectMany(d => Published(d.Folder))
+            .Select(d => d.Folder)
             .ToList();
+    }
+
+    /// <summary>
+    /// Reads every published file of one folder as one listing: when a file of the listing is gone
+    /// before it is opened (a compaction swapped the folder, or deleted the inputs of a merged file,
+    /// in between), the rows read so far are dropped and the folder is listed and read again, so the
+    /// rows always come from one state of the folder. Gives up after a few tries, naming the folder.
+    /// </summary>
+    private static async Task<List<(string File, IList<T> Rows)>> ReadFolderAsync<T>(string folder, string outputFolder, ImmutableArray<string>.Builder unreadable, CancellationToken cancellationToken)
+        where T : class, new()
+    {
+        const int Tries = 5;
+        for (var attempt = 1; ; attempt++)
+        {
+            var problems = ImmutableArray.CreateBuilder<string>();
+            var read = new List<(string, IList<T>)>();
+            try
+            {
+                foreach (var file in Published(folder))
+                {
+                    read.Add((file, await TryReadAsync<T>(file, outputFolder, problems, cancellationToken).ConfigureAwait(false)));
+                }
+
+                unreadable.AddRange(problems);
+                return read;
+            }
+            catch (Exception e) when ((e is FileNotFoundException or DirectoryNotFoundException) && attempt < Tries)
+            {
+                // Listed, then gone: read the folder again from a new listing.
+            }
+            catch (Exception e) when (e is FileNotFoundException or DirectoryNotFoundException)
+            {
+                unreadable.Add(Messages.ReportFileUnreadable(Path.GetRelativePath(outputFolder, folder).Replace('\\', '/'), e.Message));
+                return [];
+            }
+        }
     }
 
     /// <summary>
@@ -127,16 +172,15 @@ public static class ReportReader
     /// </summary>
     public static IEnumerable<string> Published(string folder)
     {
-        var superseded = CompactionManifest.Superseded(folder);
-        return Directory.EnumerateFiles(folder, "*.parquet")
-            .Where(f => !Path.GetFileName(f).StartsWith('.') && !superseded.Contains(Path.GetFileName(f)))
-            .Order(StringComparer.Ordinal)
-            .ToList();
+        // List first, then judge by the manifests: a merged file in the listing has its manifest on disk already.
+        var listed = Directory.EnumerateFiles(folder, "*.parquet").Select(f => Path.GetFileName(f)).Where(n => !n.StartsWith('.')).ToHashSet(StringComparer.Ordinal);
+        var superseded = CompactionManifest.Superseded(folder, listed);
+        return listed.Where(n => !superseded.Contains(n)).Order(StringComparer.Ordinal).Select(n => Path.Combine(folder, n)).ToList();
     }
 
-    private static async Task ReadPointsAsync(string file, string outputFolder, HashSet<string> wanted, Dictionary<string, List<ReportedPoint>> points, ImmutableArray<string>.Builder unreadable, CancellationToken cancellationToken)
+    private static void AddPoints(IList<PointRow> read, HashSet<string> wanted, Dictionary<string, List<ReportedPoint>> points)
     {
-        foreach (var p in await TryReadAsync<PointRow>(file, outputFolder, unreadable, cancellationToken).ConfigureAwait(false))
+        foreach (var p in read)
         {
             if (!wanted.Contains(p.UnitKey))
             {
@@ -152,6 +196,7 @@ public static class ReportReader
         }
     }
 
+    /// <summary>A file's rows; an unreadable file is named in <paramref name="unreadable"/> and gives none. A file that is gone throws (<see cref="FileNotFoundException"/>), for the caller to list again.</summary>
     private static async Task<IList<T>> TryReadAsync<T>(string file, string outputFolder, ImmutableArray<string>.Builder unreadable, CancellationToken cancellationToken)
         where T : class, new()
     {
@@ -161,7 +206,7 @@ public static class ReportReader
             var result = await ParquetSerializer.DeserializeAsync<T>(stream, cancellationToken: cancellationToken).ConfigureAwait(false);
             return result.Data;
         }
-        catch (Exception e) when (e is IOException or UnauthorizedAccessException or InvalidDataException or NotSupportedException or InvalidOperationException or ArgumentException or FormatException)
+        catch (Exception e) when (e is not (FileNotFoundException or DirectoryNotFoundException) && e is IOException or UnauthorizedAccessException or InvalidDataException or NotSupportedException or InvalidOperationException or ArgumentException or FormatException)
         {
             unreadable.Add(Messages.ReportFileUnreadable(Path.GetRelativePath(outputFolder, file).Replace('\\', '/'), e.Message));
             return [];
