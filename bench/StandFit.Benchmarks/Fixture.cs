@@ -10,13 +10,20 @@ namespace StandFit.Benchmarks;
 /// 21-point straight line (line.csv), 1000 pairs resamples of it as drawn by StandFit's generator
 /// (line-indices.csv, 0-based point indices, one resample per row), and 1000 pairs resamples of
 /// the 15 law-school pairs (law-indices.csv). The test checks that the generator still draws
-/// exactly these indices, and that StandFit's intervals on them equal boot's.
+/// exactly these indices, and that StandFit's intervals on them equal boot's. For
+/// nls_boot_reference.R (the nonlinear refits): 1000 pairs resamples of the 54 points of NIST StRD
+/// Chwirut2 (chwirut2-pairs-indices.csv) and 1000 residual resamples of the 14 points of Misra1a
+/// (misra1a-residual-indices.csv: the indices of the adjusted residuals drawn), each resample one
+/// <see cref="Xoshiro256StarStar.FillBelow"/> of n, exactly as the resamplers draw them (the test
+/// checks the resampler still does).
 /// </summary>
 internal static class Fixture
 {
     public const ulong LineSeed = 20261202;
     public const ulong LineStream = 424242;
     public const ulong LawStream = 1993;
+    public const ulong Chwirut2Stream = 541;
+    public const ulong Misra1aStream = 141;
     public const int B = 1000;
 
     public static void Write(string folder)
@@ -46,6 +53,22 @@ internal static class Fixture
         }
 
         File.WriteAllText(Path.Combine(folder, "law-indices.csv"), Rows(lawIndices, 15));
+        File.WriteAllText(Path.Combine(folder, "chwirut2-pairs-indices.csv"), Rows(Draws(Chwirut2Stream, 54), 54));
+        File.WriteAllText(Path.Combine(folder, "misra1a-residual-indices.csv"), Rows(Draws(Misra1aStream, 14), 14));
+    }
+
+    /// <summary>B resamples of n indices from one stream, each one FillBelow of n (a pairs or residual resample's draws).</summary>
+    private static int[] Draws(ulong stream, int n)
+    {
+        var rng = new Xoshiro256StarStar(stream);
+        var indices = new int[B * n];
+        var threshold = Xoshiro256StarStar.RejectionThreshold(n);
+        for (var r = 0; r < B; r++)
+        {
+            rng.FillBelow(indices.AsSpan(r * n, n), (uint)n, threshold);
+        }
+
+        return indices;
     }
 
     private static string Rows(int[] indices, int n)

@@ -102,9 +102,12 @@ public static class UnitEvaluator
         probe?.Done(EvaluationStage.Diagnostics);
         var findings = new List<Finding>();
         ResamplingResult? resampling = null;
-        if (recipe.Resampling is { } plan && fit is FitResult resampled)
+        if (recipe.Resampling is { } plan)
         {
-            resampling = ResamplingAnalysis.Run(resampled, sweep, recipe, plan, StreamSeed.Derive(plan.Seed, sweep.Identity.Serial, sourceSha256 ?? ""));
+            var streamSeed = StreamSeed.Derive(plan.Seed, sweep.Identity.Serial, sourceSha256 ?? "");
+            resampling = fit is NonlinearFitResult nonlinear
+                ? ResamplingAnalysis.Run(nonlinear, (ExpressionModel)model, sweep, recipe, plan, streamSeed)
+                : ResamplingAnalysis.Run((FitResult)fit, sweep, recipe, plan, streamSeed);
             figures = resampling.Attach(figures);
             findings.AddRange(resampling.Findings);
         }

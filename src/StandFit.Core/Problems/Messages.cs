@@ -95,7 +95,7 @@ public static class Messages
     public static string RecipeStartOutsideBounds(string path, string start, double? min, double? max) =>
         F($"{path} is {start}, outside the parameter's bounds [{(min is { } lo ? Numbers.Format(lo) : "-inf")}, {(max is { } hi ? Numbers.Format(hi) : "inf")}]; the search must start inside them.");
     public static string RecipeParametersEmpty(string path) => F($"{path} declares no parameter; declare each parameter of the expression with its start value, for example R25: {{ start: 10000 }}.");
-    public static string RecipeNotForExpression(string what) => F($"{what} cannot be used with model type 'expression': it needs a model linear in its parameters (weights, resampling kernels, the curvature test of the next polynomial power). Remove it, or use a linear model type.");
+    public static string RecipeNotForExpression(string what) => F($"{what} cannot be used with model type 'expression': it needs a model linear in its parameters (weights, the curvature test of the next polynomial power). Remove it, or use a linear model type.");
     public static string RecipeDerivedOneInput(string path, int inputs) => F($"{path} is a point on a curve of one stimulus, but the recipe names {inputs} stimulus columns; derived figures need a model of one input.");
     public static string RecipeCurveUseNeedsRule(string path) => F($"{path} needs the standard uncertainty of a new reading, which a weighted fit takes from the recipe's rule; 'weights.column' gives it only for the sweep's own readings. Use 'weights: {{ u_fixed: ..., u_relative: ... }}', or a value_at figure.");
     public static string RecipeCurveUseTransformed(string path, string model) => F($"{path} on a weighted '{model}' fit would need a new reading's uncertainty on the fitted response's scale, which the weight rule does not give; remove the weights or use a value_at figure.");
@@ -344,8 +344,9 @@ public static class Messages
 
     public static string IntervalBasisJackknife(string groups, int deletions, double coverage) => F($"jackknife {groups}, {deletions} deletions, t({Numbers.Format(coverage * 100, 6)} %, {deletions - 1} df) SE");
 
-    public static string TooManyFailedResamples(int failed, int requested, double percent, double maxPercent, int degenerate, int rankDeficient, int nonFinite) =>
-        F($"{failed} of {requested} bootstrap resamples could not be fitted ({Numbers.Format(percent, 4)} %, over the recipe's max_failed_percent {Numbers.Format(maxPercent)}): {degenerate} with no stimulus spread, {rankDeficient} rank deficient, {nonFinite} non-finite; the bootstrap figures rest on too few resamples. Test the unit again, or use a sweep with more points per set point");
+    /// <summary>The counts of a nonlinear model's causes (<paramref name="notConverged"/>, <paramref name="atBound"/>) are named only when one of them is not 0.</summary>
+    public static string TooManyFailedResamples(int failed, int requested, double percent, double maxPercent, int degenerate, int rankDeficient, int nonFinite, int notConverged = 0, int atBound = 0) =>
+        F($"{failed} of {requested} bootstrap resamples could not be fitted ({Numbers.Format(percent, 4)} %, over the recipe's max_failed_percent {Numbers.Format(maxPercent)}): {degenerate} with no stimulus spread, {rankDeficient} rank deficient, {nonFinite} non-finite{(notConverged + atBound > 0 ? F($", {notConverged} not converged within the iteration limit, {atBound} on a parameter bound") : "")}; the bootstrap figures rest on too few resamples. Test the unit again, or use a sweep with more points per set point{(notConverged + atBound > 0 ? " and across the whole range of the curve" : "")}");
 
     public static string InfluentialPoint(string figure, int line, double stimulus, double shift, string unit, double shiftInSe, int deletions) =>
         F($"delete-one jackknife of {figure}: the point on line {line} (stimulus {Numbers.Format(stimulus)}) moves it most; leaving it out changes {figure} by {Numbers.Format(shift, 4)}{(unit.Length == 0 ? "" : " " + unit)} ({Numbers.Format(shiftInSe, 3)} jackknife SE, of {deletions} points)");

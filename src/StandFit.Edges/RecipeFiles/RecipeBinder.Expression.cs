@@ -175,9 +175,9 @@ public static partial class RecipeBinder
     }
 
     /// <summary>
-    /// What an expression model cannot have: weights (the Levenberg-Marquardt fit is unweighted),
-    /// resampling (its kernels refit a linear design) and the curvature gate and figures (the next
-    /// power of a polynomial). Each is refused where it is written.
+    /// What an expression model cannot have: weights (the Levenberg-Marquardt fit is unweighted)
+    /// and the curvature gate and figures (the next power of a polynomial). Each is refused where it
+    /// is written. Resampling is allowed: every resample is refitted (docs/uncertainty.md).
     /// </summary>
     private static void CheckExpressionRecipe(MapReader top, CurveModel? model)
     {
@@ -187,12 +187,9 @@ public static partial class RecipeBinder
             return;
         }
 
-        foreach (var key in new[] { "weights", "resampling" })
+        if (top.KeyNode("weights") is { } weights)
         {
-            if (top.KeyNode(key) is { } node)
-            {
-                top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeNotForExpression("'" + key + "'"), node);
-            }
+            top.Sink.Add(RecipeCodes.Contradiction, Messages.RecipeNotForExpression("'weights'"), weights);
         }
 
         if (top.Node("gates") is YamlMap gates && gates.Entries.FirstOrDefault(e => e.Key.Text == "curvature") is { } curvature)

@@ -70,7 +70,7 @@ public sealed class RecipeSchemaBoundaryTests
           points: all
         """;
 
-    /// <summary>For the keys of an expression model, which refuses weights, resampling and the curvature gate.</summary>
+    /// <summary>For the keys of an expression model, which refuses weights and the curvature gate.</summary>
     private const string ExpressionRecipe = """
         recipe: Bounds
         version: "1"

@@ -9,7 +9,7 @@ namespace StandFit.Core.Fitting.Expressions;
 /// threads; evaluation allocates nothing (the caller lends the scratch space). Made by
 /// <see cref="ExpressionParser.Parse"/>.
 /// </summary>
-public sealed class ModelExpression
+public sealed partial class ModelExpression
 {
     private const int StackLimitOnStack = 256;
 

@@ -19,12 +19,18 @@ public enum ResampleFailure
 
     /// <summary>The refit gave a non-finite number.</summary>
     NonFinite,
+
+    /// <summary>A nonlinear refit: the Levenberg-Marquardt search reached its iteration limit (the recipe's <c>max_iterations</c>) without converging.</summary>
+    NotConverged,
+
+    /// <summary>A nonlinear refit converged onto one of the recipe's parameter bounds: a constrained estimate, not a least-squares one.</summary>
+    AtBound,
 }
 
-/// <summary>Counts of one bootstrap run: resamples asked for, fitted, and failed by cause.</summary>
-public readonly record struct BootstrapCounts(int Requested, int Succeeded, int DegenerateStimulus, int RankDeficient, int NonFinite)
+/// <summary>Counts of one bootstrap run: resamples asked for, fitted, and failed by cause (the last two only for a nonlinear model).</summary>
+public readonly record struct BootstrapCounts(int Requested, int Succeeded, int DegenerateStimulus, int RankDeficient, int NonFinite, int NotConverged = 0, int AtBound = 0)
 {
-    public int Failed => DegenerateStimulus + RankDeficient + NonFinite;
+    public int Failed => DegenerateStimulus + RankDeficient + NonFinite + NotConverged + AtBound;
 }
 
 /// <summary>
@@ -42,7 +48,7 @@ public readonly record struct BootstrapCounts(int Requested, int Succeeded, int 
 /// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. No
 /// allocation happens per resample; the caller provides the output buffers.
 /// </summary>
-public sealed class LinearResampler
+public sealed class LinearResampler : IResampler
 {
     /// <summary>A Cholesky pivot of Q'WQ at or below this fraction of its diagonal entry is a rank deficiency.</summary>
     public const double PivotTolerance = 1e-12;
@@ -153,20 +159,8 @@ public sealed class LinearResampler
         }
 
         _adjusted = new double[_n];
-        var mean = 0.0;
-        for (var i = 0; i < _n; i++)
-        {
-            var room = 1.0 - fit.Leverage[i];
-            _adjusted[i] = room > 1e-12 ? _residuals[i] / Math.Sqrt(room) : 0.0;
-            mean += _adjusted[i];
-        }
-
-        mean /= _n;
         _centred = new double[_n];
-        for (var i = 0; i < _n; i++)
-        {
-            _centred[i] = _adjusted[i] - mean;
-        }
+        ResampleDraws.Adjust(_residuals, fit.Leverage.AsSpan(), _adjusted, _centred);
     }
 
     public int Points => _n;
@@ -430,54 +424,17 @@ public sealed class LinearResampler
     {
         // b* - b_hat = M Q' e*, so figure k changes by sum_c FM[k, c] (Q' e*)_c.
         Span<double> acc = stackalloc double[Math.Max(_p, 4)];
-        var bound = (uint)_n;
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
         var drawn = new int[_n];
         var errors = new double[_n];
         var good = 0;
         var nonFinite = 0;
-        const double MammenLow = -0.6180339887498949;   // -(sqrt 5 - 1) / 2
-        const double MammenHigh = 1.618033988749895;    // (sqrt 5 + 1) / 2
-        const double MammenLowChance = 0.7236067977499790; // (sqrt 5 + 1) / (2 sqrt 5)
         for (var r = 0; r < resamples; r++)
         {
-            switch (scheme)
+            ResampleDraws.Errors(scheme, ref rng, _adjusted, _centred, threshold, drawn, errors);
+            if (scheme == BootstrapScheme.Residual && !recordIndices.IsEmpty)
             {
-                case BootstrapScheme.Residual:
-                    rng.FillBelow(drawn, bound, threshold);
-                    if (!recordIndices.IsEmpty)
-                    {
-                        drawn.CopyTo(recordIndices.Slice(r * _n, _n));
-                    }
-
-                    for (var i = 0; i < _n; i++)
-                    {
-                        errors[i] = _centred[drawn[i]];
-                    }
-
-                    break;
-                case BootstrapScheme.WildRademacher:
-                    ulong bits = 0;
-                    for (var i = 0; i < _n; i++)
-                    {
-                        if ((i & 63) == 0)
-                        {
-                            bits = rng.NextUInt64();
-                        }
-
-                        // Bit 1 flips the sign: the residual's sign bit XOR the weight's.
-                        errors[i] = BitConverter.Int64BitsToDouble(BitConverter.DoubleToInt64Bits(_adjusted[i]) ^ (long)((bits & 1) << 63));
-                        bits >>= 1;
-                    }
-
-                    break;
-                default:
-                    for (var i = 0; i < _n; i++)
-                    {
-                        errors[i] = _adjusted[i] * (rng.NextDouble() < MammenLowChance ? MammenLow : MammenHigh);
-                    }
-
-                    break;
+                drawn.CopyTo(recordIndices.Slice(r * _n, _n));
             }
 
             ProjectErrors(errors, acc);

@@ -1,6 +1,7 @@
 using System.Collections.Immutable;
 using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
+using StandFit.Core.Fitting.Nonlinear;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
 using StandFit.Core.Problems;
@@ -104,8 +105,11 @@ public sealed class ResamplingResult
 }
 
 /// <summary>
-/// Jackknife and bootstrap error bars for every parameter and derived figure of a unit whose model
-/// is linear in its parameters (<see cref="LinearResampler"/>). Deterministic: the bootstrap draws
+/// Jackknife and bootstrap error bars for every parameter and derived figure of a unit: by the
+/// exact update of the fit's QR factors for a model linear in its parameters
+/// (<see cref="LinearResampler"/>), by a refit of every resample from the full-data estimate for an
+/// expression model (<see cref="NonlinearResampler"/>); the summaries, intervals and findings are the
+/// same code for both. Deterministic: the bootstrap draws
 /// come from one xoshiro256** stream per unit, seeded by <see cref="StreamSeed"/>; the figures are
 /// reduced in resample order on one thread, so the result never depends on how many units are
 /// judged at once.
@@ -126,15 +130,60 @@ public static class ResamplingAnalysis
         return Run(kernel, names, units, sweep, plan, streamSeed, recipe.Confidence);
     }
 
+    /// <summary>Resampling of a converged expression-model fit: every resample refitted from the fit's estimates (<see cref="NonlinearResampler"/>).</summary>
+    public static ResamplingResult Run(NonlinearFitResult fit, ExpressionModel model, Sweep sweep, Recipe recipe, ResamplingPlan plan, ulong streamSeed)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(sweep);
+        ArgumentNullException.ThrowIfNull(recipe);
+        ArgumentNullException.ThrowIfNull(plan);
+        var (names, units, derived) = Figures(model, recipe);
+        var kernel = new NonlinearResampler(fit, model, derived);
+        return Run(kernel, names, units, sweep, plan, streamSeed, recipe.Confidence);
+    }
+
+    /// <summary>
+    /// The figures an expression model's resampling reports: every parameter, then every derived
+    /// figure that is a function of the parameters alone (sensitivity_at, value_at, band_at). An
+    /// inverse prediction (inverse_at) is a root of the refitted curve, not resampled: a limit that
+    /// judges its resampling interval is not evaluated.
+    /// </summary>
+    public static (ImmutableArray<string> Names, ImmutableArray<string> Units, ImmutableArray<DerivedFigure> Derived) Figures(ExpressionModel model, Recipe recipe)
+    {
+        ArgumentNullException.ThrowIfNull(model);
+        ArgumentNullException.ThrowIfNull(recipe);
+        var derived = Resampled(recipe);
+        var names = ImmutableArray.CreateBuilder<string>();
+        var units = ImmutableArray.CreateBuilder<string>();
+        foreach (var name in model.ParameterNames)
+        {
+            names.Add(name);
+            units.Add(recipe.UnitOf(name));
+        }
+
+        foreach (var d in derived)
+        {
+            names.Add(d.Name);
+            units.Add(d.Kind == DerivedKind.SensitivityAt ? recipe.UnitOfSensitivity() : recipe.Units.Output);
+        }
+
+        return (names.ToImmutable(), units.ToImmutable(), derived);
+    }
+
+    /// <summary>The recipe's derived figures that resampling reports: all but the inverse predictions.</summary>
+    private static ImmutableArray<DerivedFigure> Resampled(Recipe recipe) => [.. recipe.Derived.Where(d => d.Kind != DerivedKind.InverseAt)];
+
     /// <summary>The figures resampled: every parameter, then every derived figure, with units and gradients (f x p).</summary>
     public static (ImmutableArray<string> Names, ImmutableArray<string> Units, double[] Gradients) Figures(LinearModel model, Recipe recipe)
     {
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(recipe);
         var p = model.ParameterCount;
+        var resampled = Resampled(recipe);
         var names = ImmutableArray.CreateBuilder<string>();
         var units = ImmutableArray.CreateBuilder<string>();
-        var gradients = new double[(p + recipe.Derived.Length) * p];
+        var gradients = new double[(p + resampled.Length) * p];
         for (var j = 0; j < p; j++)
         {
             names.Add(model.ParameterNames[j]);
@@ -142,9 +191,9 @@ public static class ResamplingAnalysis
             gradients[(j * p) + j] = 1.0;
         }
 
-        for (var d = 0; d < recipe.Derived.Length; d++)
+        for (var d = 0; d < resampled.Length; d++)
         {
-            var derived = recipe.Derived[d];
+            var derived = resampled[d];
             var row = gradients.AsSpan((p + d) * p, p);
             if (derived.Kind == DerivedKind.SensitivityAt)
             {
@@ -163,7 +212,7 @@ public static class ResamplingAnalysis
         return (names.ToImmutable(), units.ToImmutable(), gradients);
     }
 
-    private static ResamplingResult Run(LinearResampler kernel, ImmutableArray<string> names, ImmutableArray<string> units, Sweep sweep, ResamplingPlan plan, ulong streamSeed, ConfidenceLevel level)
+    private static ResamplingResult Run(IResampler kernel, ImmutableArray<string> names, ImmutableArray<string> units, Sweep sweep, ResamplingPlan plan, ulong streamSeed, ConfidenceLevel level)
     {
         var n = kernel.Points;
         var f = kernel.Figures;
@@ -240,7 +289,7 @@ public static class ResamplingAnalysis
                     findings.Add(new Finding(
                         ReasonCodes.ResamplingTooManyFailures.Code,
                         ReasonCodes.ResamplingTooManyFailures.Kind,
-                        Messages.TooManyFailedResamples(run.Failed, run.Requested, percent, maxPercent, run.DegenerateStimulus, run.RankDeficient, run.NonFinite)));
+                        Messages.TooManyFailedResamples(run.Failed, run.Requested, percent, maxPercent, run.DegenerateStimulus, run.RankDeficient, run.NonFinite, run.NotConverged, run.AtBound)));
                 }
             }
         }
