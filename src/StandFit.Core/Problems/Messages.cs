@@ -355,6 +355,8 @@ public static class Messages
 
     public static string IntervalWithCoverage(string where, string interval) => F($"{where} judges the {interval} interval and also gives a 'coverage_factor'; a resampling interval has no coverage factor. Remove one of them.");
 
+    public static string InverseNotResampled(string figure, string interval) => F($"the limit on '{figure}' judges its {interval} interval, but '{figure}' is an inverse prediction (inverse_at), which the jackknife and bootstrap do not resample; judge its t interval ('interval: t'), or a value_at figure.");
+
     public static string ResamplingNeeded(string figure) => F($"the limit on '{figure}' judges a resampling interval, but the recipe has no 'resampling' section; add 'resampling: {{ seed: ..., bootstrap: ..., resamples: ..., max_failed_percent: ... }}'.");
 
     public static string BootstrapKeyNeeded(string key, string figure, string interval) => F($"'resampling' needs '{key}' written out because the limit on '{figure}' judges its {interval} interval; the ruling must not rest on a default.");

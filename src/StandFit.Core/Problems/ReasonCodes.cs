@@ -87,7 +87,7 @@ public static class ReasonCodes
     public static readonly ReasonCode RunsStructure = new("residuals.runs_structure", ReasonKind.Fail, "Too few (or too many) runs of residual signs in stimulus order: the model does not describe the unit.");
 
     // Resampling (jackknife and bootstrap).
-    public static readonly ReasonCode ResamplingTooManyFailures = new("resampling.too_many_failures", ReasonKind.Retest, "More bootstrap resamples could not be fitted (no stimulus spread, rank deficient) than the recipe's 'resampling.max_failed_percent' allows.");
+    public static readonly ReasonCode ResamplingTooManyFailures = new("resampling.too_many_failures", ReasonKind.Retest, "More bootstrap resamples could not be fitted (no stimulus spread, rank deficient; for an expression model also not converged or on a bound) than the recipe's 'resampling.max_failed_percent' allows.");
     public static readonly ReasonCode ResamplingInfluentialPoint = new("resampling.influential_point", ReasonKind.Pass, "The delete-one jackknife names the point whose deletion moves the gain most, with its line in the sweep file.");
     public static readonly ReasonCode ResamplingJackknifeUnavailable = new("resampling.jackknife_unavailable", ReasonKind.Pass, "A delete-one deletion leaves a sweep that cannot be fitted: no jackknife figures and no BCa intervals for this unit (a limit that needs them is not evaluated).");
 

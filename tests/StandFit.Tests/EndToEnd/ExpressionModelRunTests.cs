@@ -139,7 +139,7 @@ public sealed class ExpressionModelRunTests : IClassFixture<ExpressionModelRunTe
     }
 
     /// <summary>The 41-point up-and-down sweep of one unit: the stimulus 0 to 100 % and back in 5 % steps, the output its curve plus seeded normal noise of SD 2 mV.</summary>
-    private static string SweepText(int index, double y0, double span, double tau)
+    internal static string SweepText(int index, double y0, double span, double tau)
     {
         var random = new SplitMix(20261204UL + (ulong)index);
         var text = new StringBuilder();

@@ -126,6 +126,65 @@ public sealed class NonlinearResamplingRecipeTests
     }
 
     [Fact]
+    public void A_limit_that_judges_the_bootstrap_interval_of_an_inverse_prediction_is_refused_where_it_is_written()
+    {
+        var recipe = Bind("""
+            decision:
+              rule: guarded
+              interval: bootstrap-percentile
+            derived:
+              at_3V: { inverse_at: 3.0 }
+            limits:
+              span: { min: 3.9, max: 4.1 }
+              at_3V: { min: 26, max: 33 }
+            resampling: { seed: 1, bootstrap: pairs, resamples: 1000, max_failed_percent: 5 }
+            """);
+        Assert.False(recipe.IsSuccess);
+        var problem = Assert.Single(recipe.Problems);
+        Assert.Equal("recipe.contradiction", problem.Code);
+        Assert.StartsWith("the limit on 'at_3V' judges its bootstrap-percentile interval, but 'at_3V' is an inverse prediction", problem.Message, StringComparison.Ordinal);
+        Assert.Equal(26, problem.Location.Line);
+
+        // Its own t interval is accepted beside the span's bootstrap interval.
+        var fixedRecipe = Bind("""
+            decision:
+              rule: guarded
+              interval: bootstrap-percentile
+            derived:
+              at_3V: { inverse_at: 3.0 }
+            limits:
+              span: { min: 3.9, max: 4.1 }
+              at_3V: { min: 26, max: 33, interval: t }
+            resampling: { seed: 1, bootstrap: pairs, resamples: 1000, max_failed_percent: 5 }
+            """);
+        Assert.True(fixedRecipe.IsSuccess, string.Join('\n', fixedRecipe.IsSuccess ? [] : fixedRecipe.Problems.Select(p => p.ToString())));
+    }
+
+    [Fact]
+    public void A_linear_models_inverse_prediction_is_not_resampled_either()
+    {
+        var recipe = RecipeBinder.Bind("line.yaml", """
+            recipe: KP-250
+            version: "1"
+            parts: [KP-250]
+            columns:
+              stimulus: pressure_kPa
+              output: output_mV
+            model:
+              type: straight-line
+            confidence: 0.95
+            derived:
+              at_20mV: { inverse_at: 20.0 }
+              at_100: { value_at: 100 }
+            resampling: { seed: 3, bootstrap: residual }
+            """, "h").Value;
+        var unit = UnitEvaluator.Evaluate("line.csv", SimulatedUnits.Line(21, 5), recipe);
+        Assert.Equal(["offset", "gain", "at_100"], unit.Resampling!.Figures.Select(f => f.Figure));
+        Assert.Empty(unit.Figures["at_20mV"].Intervals);
+        Assert.NotEmpty(unit.Figures["at_100"].Intervals);
+    }
+
+    [Fact]
     public void Too_many_resamples_that_cannot_be_refitted_rule_the_unit_retest_with_the_counts_of_each_cause()
     {
         var sweep = Step();

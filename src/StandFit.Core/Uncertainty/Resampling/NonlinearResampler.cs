@@ -18,9 +18,12 @@ namespace StandFit.Core.Uncertainty.Resampling;
 /// pivoted Householder QR of W^1/2 J with unit-norm columns (never J'WJ). The first step needs no
 /// evaluation: J and the residuals at theta_hat are the fit's own. A step is kept while the
 /// weighted RSS does not grow, the point stays inside the recipe's bounds and the steps shrink (each
-/// at most 0.9 of the one before); the refit has converged when the scaled step is at most the
-/// recipe's step tolerance times the scaled parameters (the search's own converged-step test, with
-/// D the column norms of the fit's Jacobian). Anything else (a step that does not shrink, the RSS
+/// at most 0.9 of the one before); the refit has converged when the scaled step still to come is at
+/// most the recipe's step tolerance times the scaled parameters, ||D d|| &lt;= tol ||D theta|| (the
+/// search's own converged-step test, with D the column norms of the fit's Jacobian), what is still
+/// to come estimated from the third step on as ||D d|| rho / (1 - rho), rho the ratio of the last
+/// two steps. The model and its Jacobian at a resample's points are evaluated in one pass over the
+/// program (<see cref="ModelExpression.EvaluateWithGradientBatch"/>). Anything else (a step that does not shrink, the RSS
 /// growing, a bound, a singular W^1/2 J, a non-finite value, 16 steps) hands the resample to the
 /// full Levenberg-Marquardt search (<see cref="LevenbergMarquardt"/>), from theta_hat on the
 /// resample's own rows (point i repeated w_i times), with the recipe's iteration limit and bounds;
