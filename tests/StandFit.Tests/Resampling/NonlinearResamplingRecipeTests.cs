@@ -197,6 +197,12 @@ public sealed class NonlinearResamplingRecipeTests
         Assert.Contains(string.Create(CultureInfo.InvariantCulture, $"{counts.RankDeficient} rank deficient"), finding.Sentence, StringComparison.Ordinal);
         Assert.Contains(string.Create(CultureInfo.InvariantCulture, $"{counts.NotConverged} not converged within the iteration limit, {counts.AtBound} on a parameter bound"), finding.Sentence, StringComparison.Ordinal);
 
+        // The summary row's failed-resamples column and each bootstrap row's 'failed' carry the count.
+        var record = SummaryRecordFactory.Create(unit, new string('b', 64), new DateTime(2026, 12, 5, 0, 0, 0, DateTimeKind.Utc), "t");
+        Assert.Equal(counts.Failed, record.ResamplingFailed);
+        Assert.All(record.Resampling.Where(r => r.Method != "jackknife"), r => Assert.Equal(counts.Failed, r.Failed));
+        Assert.Contains(record.Resampling, r => r.Method == "bca");
+
         // The same unit under a budget above its failure rate: no such reason, the figures rest on the rest.
         var lenient = UnitEvaluator.Evaluate("step.csv", sweep, StepRecipe("resampling: { seed: 7, bootstrap: pairs, resamples: 1000, max_failed_percent: 60 }"));
         Assert.Equal(counts, lenient.Resampling!.Bootstrap!.Value);
