@@ -1,4 +1,5 @@
 using System.Text.Json;
+using StandFit.Core.Problems;
 using StandFit.Tests.Support;
 
 namespace StandFit.Tests.Cli;
@@ -101,11 +102,41 @@ public sealed class CommandLineTests
     [InlineData("inspect")]
     [InlineData("recipes check")]
     [InlineData("report")]
+    [InlineData("compact")]
     public async Task Every_command_has_help(string command)
     {
         var outcome = await StandFitProcess.RunAsync(RepoPaths.Root, Timeout, [.. command.Split(' '), "--help"]);
         Assert.Equal(0, outcome.ExitCode);
         Assert.Contains("Usage: standfit " + command, outcome.Output, StringComparison.Ordinal);
+    }
+
+    [Theory]
+    [InlineData("report")]
+    [InlineData("compact")]
+    public async Task The_output_folder_commands_read_output_and_dates_alike(string command)
+    {
+        using var root = new TempFolder();
+        var output = Path.GetDirectoryName(root.Sub("output", "summaries"))!;
+        var missing = Path.Combine(root.Path, "none");
+
+        async Task Expect(int exit, string message, params string[] args)
+        {
+            var outcome = await StandFitProcess.RunAsync(root.Path, Timeout, [command, .. args]);
+            Assert.Equal(exit, outcome.ExitCode);
+            Assert.Contains($"standfit {command}: {message}", outcome.Error, StringComparison.Ordinal);
+        }
+
+        await Expect(2, "--output OUTPUT_FOLDER is required");
+        await Expect(2, "unexpected argument extra", "--output", output, "extra");
+        await Expect(2, Messages.ReportBadDate("--from", "2026-13-01"), "--output", output, "--from", "2026-13-01");
+        await Expect(2, Messages.ReportBadDate("--to", "1.12.2026"), "--output", output, "--to", "1.12.2026");
+        await Expect(2, Messages.ReportDatesReversed("2026-12-02", "2026-12-01"), "--output", output, "--from", "2026-12-02", "--to", "2026-12-01");
+        await Expect(1, Messages.ReportNoOutputFolder(missing), "--output", missing, "--from", "2026-12-01");
+        if (command == "compact")
+        {
+            // The table is read before the dates, as before the options were shared.
+            await Expect(2, Messages.CompactBadTable("x"), "--output", output, "--table", "x", "--from", "bad");
+        }
     }
 
     [Fact]
