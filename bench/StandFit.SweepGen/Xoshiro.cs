@@ -1,50 +1,28 @@
-using System.Numerics;
+using StandFit.Core.Uncertainty.Resampling;
 
 namespace StandFit.SweepGen;
 
 /// <summary>
-/// xoshiro256** (Blackman and Vigna), seeded through splitmix64, with Gaussian deviates from the
-/// Marsaglia polar method. Only IEEE-754 basic arithmetic and square root are used (the logarithm
-/// is computed here rather than by the platform maths library), so a given (seed, stream) pair
-/// yields the same numbers on every platform and .NET version.
+/// Gaussian deviates (Marsaglia polar method) over one stream of the core's xoshiro256**
+/// generator, seeded with <c>seed ^ (stream * 0xD1B54A32D192ED03)</c> through splitmix64. Only
+/// IEEE-754 basic arithmetic and square root are used (the logarithm is computed here rather than
+/// by the platform maths library), so a given (seed, stream) pair yields the same numbers on every
+/// platform and .NET version.
 /// </summary>
 internal sealed class Xoshiro
 {
     private const double Ln2 = 0.6931471805599453;
-    private ulong s0;
-    private ulong s1;
-    private ulong s2;
-    private ulong s3;
+    private Xoshiro256StarStar generator;
     private double spare;
     private bool hasSpare;
 
     public Xoshiro(ulong seed, ulong stream)
     {
-        ulong x = unchecked(seed ^ (stream * 0xD1B54A32D192ED03UL));
-        s0 = SplitMix64(ref x);
-        s1 = SplitMix64(ref x);
-        s2 = SplitMix64(ref x);
-        s3 = SplitMix64(ref x);
-    }
-
-    public ulong NextUInt64()
-    {
-        unchecked
-        {
-            ulong result = BitOperations.RotateLeft(s1 * 5UL, 7) * 9UL;
-            ulong t = s1 << 17;
-            s2 ^= s0;
-            s3 ^= s1;
-            s1 ^= s2;
-            s0 ^= s3;
-            s2 ^= t;
-            s3 = BitOperations.RotateLeft(s3, 45);
-            return result;
-        }
+        generator = new Xoshiro256StarStar(unchecked(seed ^ (stream * 0xD1B54A32D192ED03UL)));
     }
 
     /// <summary>Uniform on [0, 1) with 53 random bits.</summary>
-    public double NextDouble() => (NextUInt64() >> 11) * (1.0 / 9007199254740992.0);
+    public double NextDouble() => generator.NextDouble();
 
     public double NextGaussian()
     {
@@ -81,18 +59,6 @@ internal sealed class Xoshiro
         }
 
         return h;
-    }
-
-    private static ulong SplitMix64(ref ulong x)
-    {
-        unchecked
-        {
-            x += 0x9E3779B97F4A7C15UL;
-            ulong z = x;
-            z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9UL;
-            z = (z ^ (z >> 27)) * 0x94D049BB133111EBUL;
-            return z ^ (z >> 31);
-        }
     }
 
     /// <summary>Natural logarithm of a positive normal double: ln(m 2^e) = e ln2 + 2 atanh((m-1)/(m+1)).</summary>
