@@ -8,6 +8,9 @@ namespace StandFit.Edges.Logging;
 /// <summary>
 /// The operations log: Serilog to the console (standard error, human-readable) and to a daily
 /// rolling file of compact JSON (<c>logs/standfit-YYYYMMDD.clef</c>, 31 days kept), invariant culture.
+/// The file is opened shared: workers that are configured with one logs folder append to the same
+/// file under the sink's cross-process lock. Without it every process writes at its own position
+/// and overwrites the others' lines (<c>OperationsLogSharingTests</c>).
 /// </summary>
 public static class OperationsLog
 {
@@ -28,7 +31,8 @@ public static class OperationsLog
                 new CompactJsonFormatter(),
                 Path.Combine(logsFolder, "standfit-.clef"),
                 rollingInterval: RollingInterval.Day,
-                retainedFileCountLimit: 31)
+                retainedFileCountLimit: 31,
+                shared: true)
             .CreateLogger();
     }
 }

@@ -71,6 +71,20 @@ public sealed class ScaleOutTests
             Directory.EnumerateFiles(Path.Combine(sharded.Path, "archive"), "*", SearchOption.AllDirectories)
                 .Concat(Directory.EnumerateFiles(Path.Combine(sharded.Path, "rejected"), "*", SearchOption.AllDirectories).Where(f => !f.EndsWith(".rejected.txt", StringComparison.Ordinal)))
                 .Select(Path.GetFileName).Order(StringComparer.Ordinal));
+
+        // The four processes share one logs folder: each batch event (2001) of each shard is a whole
+        // line of the day's file, and their counts add up to the inputs (none overwritten by another process).
+        var published = 0;
+        foreach (var line in Directory.GetFiles(Path.Combine(sharded.Path, "logs"), "*.clef").SelectMany(File.ReadAllLines))
+        {
+            using var json = System.Text.Json.JsonDocument.Parse(line);
+            if (json.RootElement.TryGetProperty("EventId", out var id) && id.GetProperty("Id").GetInt32() == 2001)
+            {
+                published += json.RootElement.GetProperty("Count").GetInt32();
+            }
+        }
+
+        Assert.Equal(inputs, published);
     }
 
     [Fact]
