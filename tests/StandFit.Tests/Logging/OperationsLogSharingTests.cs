@@ -14,7 +14,6 @@ public sealed class OperationsLogSharingTests : IDisposable
 
     public void Dispose()
     {
-        Console.Error.WriteLine(string.Join(",", Directory.GetFiles(_folder).Select(Path.GetFileName)));
         if (Directory.Exists(_folder))
         {
             Directory.Delete(_folder, recursive: true);
