@@ -1,6 +1,6 @@
 namespace StandFit.Core.Curve;
 
-/// <summary>A curve's gap f(x) - y0 and its slope f'(x), for <see cref="InverseRoot.Refine"/>.</summary>
+/// <summary>A curve's gap f(x) - y0 and its slope f'(x), for <see cref="InverseRoot.Refine{TCurve}(ref TCurve, double, double, double)"/>.</summary>
 public interface IGapCurve
 {
     /// <summary>f(x) - y0.</summary>
@@ -28,7 +28,7 @@ public static class InverseRoot
     /// <summary>The number of equal steps the calibrated range is scanned in.</summary>
     public const int ScanSteps = 512;
 
-    /// <summary>Most iterations of <see cref="Refine"/>; bisection alone needs at most about 64 on a step of the grid.</summary>
+    /// <summary>Most iterations of <see cref="Refine{TCurve}(ref TCurve, double, double, double)"/>; bisection alone needs at most about 64 on a step of the grid.</summary>
     public const int MaxIterations = 200;
 
     /// <summary>Grid point i (0 .. <see cref="ScanSteps"/>) of the range [lo, hi]; the last is hi exactly.</summary>
@@ -96,7 +96,17 @@ public static class InverseRoot
     public static double Refine<TCurve>(ref TCurve curve, double a, double b, double start)
         where TCurve : struct, IGapCurve
     {
-        var fa = curve.Gap(a);
+        return Refine(ref curve, a, curve.Gap(a), b, a == b ? double.NaN : curve.Gap(b), start);
+    }
+
+    /// <summary>
+    /// <see cref="Refine{TCurve}(ref TCurve, double, double, double)"/> with the gaps at the bracket's
+    /// ends already known, or any values of the same sign (0 only where the gap is 0): only their
+    /// signs are used.
+    /// </summary>
+    public static double Refine<TCurve>(ref TCurve curve, double a, double fa, double b, double fb, double start)
+        where TCurve : struct, IGapCurve
+    {
         if (fa == 0)
         {
             return a;
@@ -107,7 +117,6 @@ public static class InverseRoot
             return double.NaN;
         }
 
-        var fb = curve.Gap(b);
         if (fb == 0)
         {
             return b;

@@ -214,10 +214,10 @@ internal sealed class LinearInverse
             step = found;
         }
 
+        // The gaps at the step's ends: evaluated, or of the fit's sign (which the bound guarantees).
         var curve = new Curve(_model, _b, figure.Response);
-        var a = _grid[Math.Max(step - 1, 0)];
-        var b = _grid[step];
-        root = InverseRoot.Refine(ref curve, a, b, figure.Root);
+        var left = Math.Max(step - 1, 0);
+        root = InverseRoot.Refine(ref curve, _grid[left], Gap(figure.Gaps, left, stamp), _grid[step], Gap(figure.Gaps, step, stamp), figure.Root);
         return double.IsFinite(root) ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 

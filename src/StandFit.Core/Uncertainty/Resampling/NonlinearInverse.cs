@@ -7,7 +7,7 @@ namespace StandFit.Core.Uncertainty.Resampling;
 /// The inverse_at figures of a refitted expression model (one input): for each, the stimulus x*
 /// where f(x; theta*) = y0, by the full-data rule (<see cref="InverseRoot"/>). The curve is
 /// evaluated at every point of the grid over the calibrated range in one pass over the program
-/// (<see cref="ModelExpression.EvaluateWithGradientBatch"/>, bit for bit the per-point value the
+/// (<see cref="ModelExpression.EvaluateBatch"/>, values only, bit for bit the per-point value the
 /// full-data figure uses), once per resample for all its inverse figures; a nonlinear curve has no
 /// bound on how far it moves between grid points that would let points be skipped. The root is
 /// refined by safeguarded Newton on the expression's symbolic derivative, from the full-data root.
@@ -25,7 +25,6 @@ internal sealed class NonlinearInverse
     private readonly int[] _rows;
     private readonly double[] _values;
     private readonly double[] _gaps;
-    private readonly double[] _jacobian;
     private readonly double[] _batchScratch;
     private readonly double[] _point = new double[1];
     private readonly double[] _gradient;
@@ -53,8 +52,7 @@ internal sealed class NonlinearInverse
 
         _values = new double[Points];
         _gaps = new double[Points];
-        _jacobian = new double[p * Points];
-        _batchScratch = new double[model.BatchScratchLength(Points)];
+        _batchScratch = new double[model.ValueBatchScratchLength(Points)];
         _gradient = new double[p];
         _scratch = new double[Math.Max(model.GradientScratchLength, _slope.GradientScratchLength)];
         _theta = new double[p];
@@ -79,7 +77,7 @@ internal sealed class NonlinearInverse
     private ResampleFailure Compute(ReadOnlySpan<double> theta, bool original, Span<double> output)
     {
         theta.CopyTo(_theta);
-        _model.EvaluateWithGradientBatch(_theta, _grid, _rows, _values, _jacobian, _batchScratch);
+        _model.EvaluateBatch(_theta, _grid, _rows, _values, _batchScratch);
         for (var d = 0; d < _responses.Length; d++)
         {
             var y0 = _responses[d];
