@@ -66,8 +66,10 @@ public readonly record struct BootstrapCounts(int Requested, int Succeeded, int 
 /// which is the identity for the original sample, is factorised (Cholesky) per resample. It is
 /// never X'X: its condition number measures how unevenly the resample weights the points, not the
 /// design's conditioning, which the QR has already dealt with. For the residual and wild schemes
-/// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. No
-/// allocation happens per resample; the caller provides the output buffers.
+/// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. An
+/// inverse_at figure is the root of each resample's curve f(x; b*) = y0 (<see cref="LinearInverse"/>);
+/// a resample without exactly one root in the calibrated range fails. No allocation happens per
+/// resample; the caller provides the output buffers.
 /// </summary>
 public sealed class LinearResampler : IResampler
 {

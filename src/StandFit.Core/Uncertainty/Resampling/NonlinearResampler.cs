@@ -40,7 +40,10 @@ namespace StandFit.Core.Uncertainty.Resampling;
 /// <para>
 /// The figures of a resample are its parameters and, from the refitted curve, each derived figure
 /// that is a function of the parameters alone: sensitivity_at (the expression's symbolic
-/// derivative), value_at and band_at (the curve's value). The leverage of the residual and wild
+/// derivative), value_at and band_at (the curve's value), and inverse_at (the root of the refitted
+/// curve, <see cref="NonlinearInverse"/>; a refit whose curve does not reach the output exactly once
+/// in the calibrated range fails as <see cref="ResampleFailure.NoRootInRange"/> or
+/// <see cref="ResampleFailure.SeveralRoots"/>). The leverage of the residual and wild
 /// schemes is the tangent-plane leverage of the fit. The draws are those of
 /// <see cref="LinearResampler"/> (the same indices and weights from the same stream). Every buffer
 /// is allocated by the constructor; a resample allocates nothing, except that the first hand-over
