@@ -15,7 +15,9 @@ namespace StandFit.Benchmarks;
 /// Chwirut2 (chwirut2-pairs-indices.csv) and 1000 residual resamples of the 14 points of Misra1a
 /// (misra1a-residual-indices.csv: the indices of the adjusted residuals drawn), each resample one
 /// <see cref="Xoshiro256StarStar.FillBelow"/> of n, exactly as the resamplers draw them (the test
-/// checks the resampler still does).
+/// checks the resampler still does). For inverse_boot_reference.R (resampled inverse predictions):
+/// 1000 pairs resamples of the 40 points of NIST StRD Pontius (pontius-pairs-indices.csv); its
+/// nonlinear cases reuse the Chwirut2 and Misra1a indices.
 /// </summary>
 internal static class Fixture
 {
@@ -24,6 +26,7 @@ internal static class Fixture
     public const ulong LawStream = 1993;
     public const ulong Chwirut2Stream = 541;
     public const ulong Misra1aStream = 141;
+    public const ulong PontiusStream = 1881;
     public const int B = 1000;
 
     public static void Write(string folder)
@@ -55,6 +58,7 @@ internal static class Fixture
         File.WriteAllText(Path.Combine(folder, "law-indices.csv"), Rows(lawIndices, 15));
         File.WriteAllText(Path.Combine(folder, "chwirut2-pairs-indices.csv"), Rows(Draws(Chwirut2Stream, 54), 54));
         File.WriteAllText(Path.Combine(folder, "misra1a-residual-indices.csv"), Rows(Draws(Misra1aStream, 14), 14));
+        File.WriteAllText(Path.Combine(folder, "pontius-pairs-indices.csv"), Rows(Draws(PontiusStream, 40), 40));
     }
 
     /// <summary>B resamples of n indices from one stream, each one FillBelow of n (a pairs or residual resample's draws).</summary>

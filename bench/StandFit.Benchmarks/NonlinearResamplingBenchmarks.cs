@@ -17,7 +17,9 @@ namespace StandFit.Benchmarks;
 /// plus the delete-one jackknife, every resample refitted from the full-data estimate.
 /// <c>Kernel</c> is the refits alone (the resampler built once in setup, its buffers reused);
 /// <c>Analysis</c> is everything the evaluator does per unit: the resampler, jackknife, bootstrap
-/// and the percentile, basic and BCa intervals and SEs of every figure.
+/// and the percentile, basic and BCa intervals and SEs of every figure. <c>KernelInverse</c> is
+/// <c>Kernel</c> with one inverse_at figure (the stimulus giving 3 V): every refit also scans its
+/// curve over the calibrated range and finds its root (NonlinearInverse).
 /// </summary>
 public class NonlinearResamplingBenchmarks
 {
@@ -26,6 +28,9 @@ public class NonlinearResamplingBenchmarks
     private const int Points = 21;
 
     private NonlinearResampler _kernel = null!;
+    private NonlinearResampler _inverseKernel = null!;
+    private double[] _inverseReplicates = null!;
+    private double[] _inverseLeaveOut = null!;
     private NonlinearFitResult _fit = null!;
     private ExpressionModel _model = null!;
     private Sweep _sweep = null!;
@@ -65,6 +70,11 @@ public class NonlinearResamplingBenchmarks
     {
         (_model, _fit, _sweep) = Unit();
         _kernel = new NonlinearResampler(_fit, _model, []);
+
+        // KernelInverse: one inverse_at figure besides the parameters, the stimulus that gives 3 V (about 29 %).
+        _inverseKernel = new NonlinearResampler(_fit, _model, [new StandFit.Core.Evaluation.DerivedFigure("at_3V", StandFit.Core.Evaluation.DerivedKind.InverseAt, 3.0)]);
+        _inverseReplicates = new double[4 * B];
+        _inverseLeaveOut = new double[4 * Points];
         _replicates = new double[3 * B];
         _leaveOut = new double[3 * Points];
         _failures = new ResampleFailure[Points];
@@ -79,6 +89,14 @@ public class NonlinearResamplingBenchmarks
         _kernel.LeaveOut(_own, Points, _leaveOut, _failures);
         var rng = new Xoshiro256StarStar(42);
         return _kernel.Bootstrap(BootstrapScheme.Pairs, B, ref rng, _replicates).Succeeded;
+    }
+
+    [Benchmark]
+    public int KernelInverse()
+    {
+        _inverseKernel.LeaveOut(_own, Points, _inverseLeaveOut, _failures);
+        var rng = new Xoshiro256StarStar(42);
+        return _inverseKernel.Bootstrap(BootstrapScheme.Pairs, B, ref rng, _inverseReplicates).Succeeded;
     }
 
     [Benchmark]

@@ -11,12 +11,17 @@ namespace StandFit.Benchmarks;
 /// 21-point straight line and a 21-point quadratic. <c>Kernel</c> is the resampling itself (the
 /// factorisation made once per unit in setup, buffers reused); <c>Analysis</c> is everything the
 /// evaluator does per unit: factorisation, jackknife, bootstrap and the percentile, basic and BCa
-/// intervals and SEs of every figure.
+/// intervals and SEs of every figure. <c>KernelInverse</c> is <c>Kernel</c> with one inverse_at
+/// figure besides the parameters (the output at mid-range): every deletion and resample also
+/// finds the root of its curve (LinearInverse).
 /// </summary>
 public class ResamplingBenchmarks
 {
     private const int B = 1000;
     private LinearResampler _kernel = null!;
+    private LinearResampler _inverseKernel = null!;
+    private double[] _inverseReplicates = null!;
+    private double[] _inverseLeaveOut = null!;
     private FitResult _fit = null!;
     private StandFit.Core.Ingest.Sweep _sweep = null!;
     private Recipe _recipe = null!;
@@ -44,6 +49,10 @@ public class ResamplingBenchmarks
         }
 
         _kernel = new LinearResampler(_fit, identity);
+        var y0 = _fit.Model.Evaluate(_fit.Estimates.AsSpan(), (_fit.InputMin[0] + _fit.InputMax[0]) / 2);
+        _inverseKernel = new LinearResampler(_fit, identity, [y0]);
+        _inverseReplicates = new double[(p + 1) * B];
+        _inverseLeaveOut = new double[(p + 1) * 21];
         _replicates = new double[p * B];
         _leaveOut = new double[p * 21];
         _failures = new ResampleFailure[21];
@@ -58,6 +67,14 @@ public class ResamplingBenchmarks
         _kernel.LeaveOut(_own, 21, _leaveOut, _failures);
         var rng = new Xoshiro256StarStar(42);
         return _kernel.Bootstrap(BootstrapScheme.Pairs, B, ref rng, _replicates).Succeeded;
+    }
+
+    [Benchmark]
+    public int KernelInverse()
+    {
+        _inverseKernel.LeaveOut(_own, 21, _inverseLeaveOut, _failures);
+        var rng = new Xoshiro256StarStar(42);
+        return _inverseKernel.Bootstrap(BootstrapScheme.Pairs, B, ref rng, _inverseReplicates).Succeeded;
     }
 
     [Benchmark]

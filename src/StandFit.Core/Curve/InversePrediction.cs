@@ -38,14 +38,15 @@ public sealed record InverseEstimate(
 
 /// <summary>
 /// Inverse prediction: solves f(x) = y0 on the fitted curve within the calibrated range of one input
-/// (the other inputs held at given values), by a scan for a sign change followed by bisection to
-/// full precision, and gives its uncertainty (see <see cref="InverseEstimate"/>). For a model that
+/// (the other inputs held at given values), by the rule of <see cref="InverseRoot"/> (a scan of the
+/// range for the one step that holds a root, then a safeguarded Newton iteration to full precision;
+/// the resamplers find each resample's root the same way), and gives its uncertainty (see <see cref="InverseEstimate"/>). For a model that
 /// fits a transform of the output (Steinhart-Hart fits 1/T), y0 is on the fitted response's scale.
 /// </summary>
 public static class InversePrediction
 {
     /// <summary>The number of equal steps the calibrated range is scanned in for sign changes.</summary>
-    public const int ScanSteps = 512;
+    public const int ScanSteps = InverseRoot.ScanSteps;
 
     /// <summary>
     /// The stimulus of input <paramref name="input"/> that gives <paramref name="response"/>; for a
@@ -77,33 +78,14 @@ public static class InversePrediction
 
         double Gap(double x) => Value(fit, point, input, x) - response;
 
-        // Scan for sign changes of f(x) - y0.
+        // The root rule shared with the resamplers (InverseRoot): one step of the grid holds a root.
         var grid = Grid(lo, hi);
-        var roots = new List<(double A, double B)>();
-        var previous = Gap(grid[0]);
-        if (previous == 0)
+        var (status, x0) = Root(fit, point, input, response, grid);
+        if (status != InverseStatus.Solved)
         {
-            roots.Add((grid[0], grid[0]));
-        }
-
-        for (var i = 1; i < grid.Length; i++)
-        {
-            var current = Gap(grid[i]);
-            if (current == 0 || (previous != 0 && Math.Sign(current) != Math.Sign(previous)))
-            {
-                roots.Add((grid[i - 1], grid[i]));
-            }
-
-            previous = current;
-        }
-
-        if (roots.Count != 1)
-        {
-            var status = roots.Count == 0 ? InverseStatus.OutsideRange : InverseStatus.NotMonotonic;
             return new InverseEstimate(status, response, double.NaN, double.NaN, double.NaN, double.NaN, double.NaN, null, null);
         }
 
-        var x0 = Bisect(Gap, roots[0].A, roots[0].B);
         point[input] = x0;
         Span<double> unused = stackalloc double[fit.ParameterCount];
         var slope = fit.SlopeAt(point, input, unused);
@@ -121,6 +103,43 @@ public static class InversePrediction
         var low = Edge(Outside, x0, grid.Where(g => g < x0).Reverse());
         var high = Edge(Outside, x0, grid.Where(g => g > x0));
         return new InverseEstimate(InverseStatus.Solved, response, x0, slope, se, x0 - (t * se), x0 + (t * se), low, high);
+    }
+
+    /// <summary>
+    /// The stimulus alone (no uncertainty) at which a fitted curve of one input gives
+    /// <paramref name="response"/>, by the rule of <see cref="InverseRoot"/>: what
+    /// <see cref="Solve"/> gives as <see cref="InverseEstimate.Stimulus"/>, and what the resamplers
+    /// start every resample's root from.
+    /// </summary>
+    public static (InverseStatus Status, double Stimulus) RootOf(IFitResult fit, double response)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
+        if (fit.InputCount != 1)
+        {
+            throw new ArgumentException("The root alone is for a model of one input.", nameof(fit));
+        }
+
+        return Root(fit, new double[1], 0, response, Grid(fit.InputMin[0], fit.InputMax[0]));
+    }
+
+    private static (InverseStatus Status, double Stimulus) Root(IFitResult fit, double[] point, int input, double response, double[] grid)
+    {
+        var gaps = new double[grid.Length];
+        for (var i = 0; i < grid.Length; i++)
+        {
+            gaps[i] = Value(fit, point, input, grid[i]) - response;
+        }
+
+        var roots = InverseRoot.CountRoots(gaps, out var step);
+        if (roots != 1)
+        {
+            return (InverseRoot.StatusOf(roots), double.NaN);
+        }
+
+        var curve = new FitCurve(fit, point, input, response);
+        var a = grid[Math.Max(step - 1, 0)];
+        var b = grid[step];
+        return (InverseStatus.Solved, InverseRoot.Refine(ref curve, a, b, a + ((b - a) / 2)));
     }
 
     private static double Value(IFitResult fit, double[] point, int input, double x)
@@ -142,10 +161,9 @@ public static class InversePrediction
         var grid = new double[ScanSteps + 1];
         for (var i = 0; i <= ScanSteps; i++)
         {
-            grid[i] = lo + ((hi - lo) * i / ScanSteps);
+            grid[i] = InverseRoot.GridPoint(lo, hi, i);
         }
 
-        grid[ScanSteps] = hi;
         return grid;
     }
 
@@ -205,5 +223,18 @@ public static class InversePrediction
         }
 
         return a + ((b - a) / 2);
+    }
+
+    /// <summary>The fitted curve's gap f(x) - y0 along one input, the others held.</summary>
+    private readonly struct FitCurve(IFitResult fit, double[] point, int input, double response) : IGapCurve
+    {
+        public double Gap(double x) => Value(fit, point, input, x) - response;
+
+        public double Slope(double x)
+        {
+            point[input] = x;
+            Span<double> unused = stackalloc double[fit.ParameterCount];
+            return fit.SlopeAt(point, input, unused);
+        }
     }
 }

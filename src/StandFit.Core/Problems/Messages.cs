@@ -345,8 +345,8 @@ public static class Messages
     public static string IntervalBasisJackknife(string groups, int deletions, double coverage) => F($"jackknife {groups}, {deletions} deletions, t({Numbers.Format(coverage * 100, 6)} %, {deletions - 1} df) SE");
 
     /// <summary>The counts of a nonlinear model's causes (<paramref name="notConverged"/>, <paramref name="atBound"/>) are named only when one of them is not 0.</summary>
-    public static string TooManyFailedResamples(int failed, int requested, double percent, double maxPercent, int degenerate, int rankDeficient, int nonFinite, int notConverged = 0, int atBound = 0) =>
-        F($"{failed} of {requested} bootstrap resamples could not be fitted ({Numbers.Format(percent, 4)} %, over the recipe's max_failed_percent {Numbers.Format(maxPercent)}): {degenerate} with no stimulus spread, {rankDeficient} rank deficient, {nonFinite} non-finite{(notConverged + atBound > 0 ? F($", {notConverged} not converged within the iteration limit, {atBound} on a parameter bound") : "")}; the bootstrap figures rest on too few resamples. Test the unit again, or use a sweep with more points per set point{(notConverged + atBound > 0 ? " and across the whole range of the curve" : "")}");
+    public static string TooManyFailedResamples(int failed, int requested, double percent, double maxPercent, int degenerate, int rankDeficient, int nonFinite, int notConverged = 0, int atBound = 0, int noRoot = 0, int severalRoots = 0) =>
+        F($"{failed} of {requested} bootstrap resamples could not be fitted ({Numbers.Format(percent, 4)} %, over the recipe's max_failed_percent {Numbers.Format(maxPercent)}): {degenerate} with no stimulus spread, {rankDeficient} rank deficient, {nonFinite} non-finite{(notConverged + atBound > 0 ? F($", {notConverged} not converged within the iteration limit, {atBound} on a parameter bound") : "")}{(noRoot + severalRoots > 0 ? F($", {noRoot} whose curve does not reach an inverse_at figure's output in the calibrated range, {severalRoots} whose curve reaches it more than once") : "")}; the bootstrap figures rest on too few resamples. Test the unit again, or use a sweep with more points per set point{(notConverged + atBound > 0 ? " and across the whole range of the curve" : "")}{(noRoot + severalRoots > 0 ? ", or an inverse_at output further inside the curve's range" : "")}");
 
     public static string InfluentialPoint(string figure, int line, double stimulus, double shift, string unit, double shiftInSe, int deletions) =>
         F($"delete-one jackknife of {figure}: the point on line {line} (stimulus {Numbers.Format(stimulus)}) moves it most; leaving it out changes {figure} by {Numbers.Format(shift, 4)}{(unit.Length == 0 ? "" : " " + unit)} ({Numbers.Format(shiftInSe, 3)} jackknife SE, of {deletions} points)");
@@ -355,11 +355,12 @@ public static class Messages
 
     public static string IntervalWithCoverage(string where, string interval) => F($"{where} judges the {interval} interval and also gives a 'coverage_factor'; a resampling interval has no coverage factor. Remove one of them.");
 
-    public static string InverseNotResampled(string figure, string interval) => F($"the limit on '{figure}' judges its {interval} interval, but '{figure}' is an inverse prediction (inverse_at), which the jackknife and bootstrap do not resample; judge its t interval ('interval: t'), or a value_at figure.");
-
     public static string ResamplingNeeded(string figure) => F($"the limit on '{figure}' judges a resampling interval, but the recipe has no 'resampling' section; add 'resampling: {{ seed: ..., bootstrap: ..., resamples: ..., max_failed_percent: ... }}'.");
 
     public static string BootstrapKeyNeeded(string key, string figure, string interval) => F($"'resampling' needs '{key}' written out because the limit on '{figure}' judges its {interval} interval; the ruling must not rest on a default.");
+
+    public static string JackknifeNoInverse(int line, bool several) =>
+        F($"delete-one jackknife: leaving out the point on line {line} gives a curve that {(several ? "reaches an inverse_at figure's output more than once" : "does not reach an inverse_at figure's output")} in the calibrated range, so the jackknife figures and the BCa intervals are not available");
 
     public static string JackknifeUnavailable(string figure, int line) =>
         F($"delete-one jackknife of {figure}: leaving out the point on line {line} leaves a sweep that cannot be fitted, so the jackknife figures and the BCa intervals are not available");

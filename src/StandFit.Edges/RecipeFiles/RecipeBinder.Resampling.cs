@@ -1,6 +1,5 @@
 using System.Collections.Immutable;
 using System.Globalization;
-using StandFit.Core.Evaluation;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
 using StandFit.Core.Problems;
@@ -40,21 +39,6 @@ public static partial class RecipeBinder
         }
 
         return interval;
-    }
-
-    /// <summary>
-    /// A limit that judges a resampling interval of an inverse prediction: its figure is a root of
-    /// the curve, which no resampler computes, so the interval would never exist; refused where the
-    /// limit is written.
-    /// </summary>
-    private static void CheckResampledFigures(MapReader top, ImmutableArray<FigureLimit> limits, ImmutableArray<DerivedFigure> derived)
-    {
-        var section = top.Node("limits") as YamlMap;
-        foreach (var limit in limits.Where(l => l.Interval != IntervalSource.T && derived.Any(d => d.Kind == DerivedKind.InverseAt && d.Name == l.Figure)))
-        {
-            var node = section?.Entries.FirstOrDefault(e => e.Key.Text == limit.Figure)?.Key;
-            top.Sink.Add(RecipeCodes.Contradiction, Messages.InverseNotResampled(limit.Figure, IntervalSources.Name(limit.Interval)), node);
-        }
     }
 
     private static ResamplingPlan? ReadResampling(MapReader top, ColumnMap? columns, ImmutableArray<FigureLimit> limits)

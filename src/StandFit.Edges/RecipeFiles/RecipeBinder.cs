@@ -95,7 +95,6 @@ public static partial class RecipeBinder
         var decision = ReadDecision(top);
         var limits = ReadLimits(top, model, derived, decision);
         var resampling = ReadResampling(top, columns, limits);
-        CheckResampledFigures(top, limits, derived);
         var sweep = ReadSweep(top, columns);
         var gates = top.Map("gates", GateKeys, required: false);
         var runsGate = ReadGates(gates);

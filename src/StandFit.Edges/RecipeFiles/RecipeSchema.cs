@@ -191,7 +191,7 @@ public static class RecipeSchema
                     IntervalKey,
                 ],
             },
-            new("resampling", ValueKind.Map, "Jackknife and bootstrap error bars for every parameter and derived figure but inverse_at figures (for an expression model every resample is refitted), written to the summary; guarded limits can judge their intervals ('interval').")
+            new("resampling", ValueKind.Map, "Jackknife and bootstrap error bars for every parameter and derived figure (an inverse_at figure as the root of each refitted curve; for an expression model every resample is refitted), written to the summary; guarded limits can judge their intervals ('interval').")
             {
                 Children =
                 [

@@ -7,8 +7,9 @@ namespace StandFit.Tests.EndToEnd;
 /// A recipe with a three-parameter expression model (the saturating sensor of
 /// <see cref="ExpressionModelRunTests"/>, its sweeps generated the same way) and a resampling
 /// section with a BCa guard, judged by `standfit run` as a separate process and read back from the
-/// Parquet with DuckDB: every converged unit has its resampling columns filled from refits, a limit
-/// judges the refitted BCa interval, and two runs of the same files give the same rows, every
+/// Parquet with DuckDB: every converged unit has its resampling columns filled from refits, limits
+/// judge the refitted BCa intervals of a parameter and of an inverse prediction (the stimulus at
+/// which each refitted curve gives 3 V), and two runs of the same files give the same rows, every
 /// resampling number the same bit for bit, and so do runs limited to one processor and to two
 /// (DOTNET_PROCESSOR_COUNT sets the batch runner's parallelism).
 /// </summary>
@@ -45,9 +46,11 @@ public sealed class ExpressionResamplingRunTests
         derived:
           slope_0: { sensitivity_at: 0 }
           mid: { band_at: 50 }
+          at_3V: { inverse_at: 3.0 }
         limits:
           span: { min: 3.9, max: 4.1 }
           tau: { min: 27, max: 33 }
+          at_3V: { min: 27, max: 33 }
         resampling:
           seed: 20261205
           bootstrap: pairs
@@ -75,7 +78,7 @@ public sealed class ExpressionResamplingRunTests
         var one = await RunAsync("1");
         var two = await RunAsync("2");
 
-        // Every converged unit: a stream, 1000 resamples of which none failed, the five figures by
+        // Every converged unit: a stream, 1000 resamples of which none failed, the six figures by
         // jackknife (delete-leg, 2 deletions), percentile, basic and BCa; the rejected unit none.
         var rows = first.Rows;
         Assert.Equal(Units.Length, rows.Count);
@@ -86,8 +89,13 @@ public sealed class ExpressionResamplingRunTests
             Assert.Equal("pairs", row["resampling_scheme"]);
             Assert.Equal(1000, Convert.ToInt32(row["resampling_resamples"], CultureInfo.InvariantCulture));
             Assert.Equal(0, Convert.ToInt32(row["resampling_failed"], CultureInfo.InvariantCulture));
-            Assert.Equal(5 * 4, Convert.ToInt32(row["n_resampling"], CultureInfo.InvariantCulture));
+            Assert.Equal(6 * 4, Convert.ToInt32(row["n_resampling"], CultureInfo.InvariantCulture));
             Assert.True((string)row["span_interval"]! == "bootstrap-bca", file);
+
+            // The inverse prediction's limit judged its resampled BCa interval, which the row carries.
+            Assert.True((string)row["at_3V_interval"]! == "bootstrap-bca", file);
+            Assert.Equal(4, Convert.ToInt32(row["n_at_3V"], CultureInfo.InvariantCulture));
+            Assert.True((double)row["at_3V_bca_low"]! < (double)row["at_3V_estimate"]! && (double)row["at_3V_estimate"]! < (double)row["at_3V_bca_high"]!, file);
         }
 
         var rejected = Assert.Single(rows, r => (string)r["source_file"]! == "SX40-0006.csv");
@@ -95,8 +103,12 @@ public sealed class ExpressionResamplingRunTests
         Assert.Null(rejected["resampling_stream"]);
         Assert.Equal(0, Convert.ToInt32(rejected["n_resampling"], CultureInfo.InvariantCulture));
 
-        // A unit well inside its limits passes on the refitted BCa interval; span 4.40 fails it.
+        // A unit well inside its limits passes on the refitted BCa intervals; span 4.40 fails it (and
+        // reaches 3 V at x = -30 ln(1 - 2.5/4.4) = 25.2 %, below the at_3V limit too).
         Assert.Equal("pass", Assert.Single(rows, r => (string)r["source_file"]! == "SX40-0001.csv")["ruling"]);
+        Assert.Equal("below", Assert.Single(rows, r => (string)r["source_file"]! == "SX40-0004.csv")["at_3V_zone"]);
+        // y0 + span (1 - exp(-x/tau)) = 3 V at x = -tau ln(1 - (3 - y0)/span) = 29.42 % for SX40-0001 (closed form).
+        Assert.Equal(-30.0 * Math.Log(1 - (2.5 / 4.0)), (double)Assert.Single(rows, r => (string)r["source_file"]! == "SX40-0001.csv")["at_3V_estimate"]!, 0.3);
         Assert.Equal("fail", Assert.Single(rows, r => (string)r["source_file"]! == "SX40-0004.csv")["ruling"]);
 
         Assert.NotEmpty(first.Numbers);
@@ -140,7 +152,13 @@ public sealed class ExpressionResamplingRunTests
         var rows = Duck.Query($"""
             SELECT source_file, ruling, resampling_stream, resampling_scheme, resampling_resamples, resampling_failed,
                    len(resampling) AS n_resampling,
-                   list_extract(list_filter(limit_results, l -> l.figure = 'span'), 1).interval AS span_interval
+                   list_extract(list_filter(limit_results, l -> l.figure = 'span'), 1).interval AS span_interval,
+                   list_extract(list_filter(limit_results, l -> l.figure = 'at_3V'), 1).interval AS at_3V_interval,
+                   list_extract(list_filter(limit_results, l -> l.figure = 'at_3V'), 1).zone AS at_3V_zone,
+                   len(list_filter(resampling, r -> r.figure = 'at_3V')) AS n_at_3V,
+                   list_extract(list_filter(resampling, r -> r.figure = 'at_3V' AND r.method = 'bca'), 1).estimate AS at_3V_estimate,
+                   list_extract(list_filter(resampling, r -> r.figure = 'at_3V' AND r.method = 'bca'), 1).ci_low AS at_3V_bca_low,
+                   list_extract(list_filter(resampling, r -> r.figure = 'at_3V' AND r.method = 'bca'), 1).ci_high AS at_3V_bca_high
             FROM {table} ORDER BY source_file
             """);
         var text = Duck.Query($"""

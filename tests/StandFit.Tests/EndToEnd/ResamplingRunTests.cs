@@ -4,9 +4,10 @@ namespace StandFit.Tests.EndToEnd;
 
 /// <summary>
 /// The demo units judged by `standfit run` (a separate process) under the demo recipes with a
-/// resampling section and a BCa guard: two runs give the same resampling figures, to the last
-/// digit, and so do runs limited to one processor and to two (DOTNET_PROCESSOR_COUNT sets the
-/// batch runner's parallelism).
+/// resampling section and a BCa guard (KP-250 also with an inverse prediction, the pressure at
+/// half scale, whose limit judges its resampled BCa interval): two runs give the same resampling
+/// figures, to the last digit, and so do runs limited to one processor and to two
+/// (DOTNET_PROCESSOR_COUNT sets the batch runner's parallelism).
 /// </summary>
 public sealed class ResamplingRunTests
 {
@@ -30,6 +31,8 @@ public sealed class ResamplingRunTests
         var two = await RunAsync("2");
         Assert.NotEmpty(first);
         Assert.Contains(first, row => row.Contains("bca", StringComparison.Ordinal));
+        // A KP-250 row names half_scale five times: by jackknife, percentile, basic and BCa, and in its limit's result.
+        Assert.Contains(first, row => row.Split("half_scale").Length - 1 == 5 && row.Contains("bootstrap-bca", StringComparison.Ordinal));
         Assert.Equal(first, again);
         Assert.Equal(first, one);
         Assert.Equal(first, two);
@@ -43,6 +46,12 @@ public sealed class ResamplingRunTests
         foreach (var file in Directory.EnumerateFiles(RepoPaths.InRepo("config", "recipes"), "*.yaml"))
         {
             var text = File.ReadAllText(file).Replace("  rule: guarded", "  rule: guarded\n  interval: bootstrap-bca", StringComparison.Ordinal);
+            if (Path.GetFileName(file) == "kp-250.yaml")
+            {
+                // 25 mV of 0..50 mV: (25 - offset) / gain = 125 kPa for a nominal unit.
+                text = text.Replace("\nlimits:\n", "\nderived:\n  half_scale: { inverse_at: 25.0 }\nlimits:\n  half_scale: { min: 124, max: 126 }\n", StringComparison.Ordinal);
+            }
+
             File.WriteAllText(Path.Combine(recipes, Path.GetFileName(file)), text + Resampling);
         }
 

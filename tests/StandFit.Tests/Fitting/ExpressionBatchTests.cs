@@ -73,6 +73,41 @@ public sealed class ExpressionBatchTests
         }
     }
 
+    [Theory]
+    [MemberData(nameof(Expressions))]
+    public void The_value_only_batch_evaluator_gives_the_point_by_point_value_bit_for_bit(string text)
+    {
+        // The inverse_at scan of a refitted expression (NonlinearInverse) relies on it.
+        var model = ExpressionParser.Parse(text, ["x"]).Expression;
+        var p = model.ParameterCount;
+        var rng = new Xoshiro256StarStar(20261206);
+        const int n = 23;
+        var x = new double[n];
+        for (var i = 0; i < n; i++)
+        {
+            x[i] = 0.5 + (9.5 * rng.NextDouble());
+        }
+
+        var parameters = new double[p];
+        for (var j = 0; j < p; j++)
+        {
+            parameters[j] = 0.5 + (2 * rng.NextDouble());
+        }
+
+        int[] rows = [.. Enumerable.Range(0, n).Reverse()];
+        var values = new double[n];
+        var scratch = new double[model.ValueBatchScratchLength(n)];
+        Array.Fill(scratch, double.NaN);
+        model.EvaluateBatch(parameters, x, rows, values, scratch);
+        var gradient = new double[p];
+        var single = new double[model.GradientScratchLength];
+        for (var r = 0; r < n; r++)
+        {
+            var value = model.EvaluateWithGradient(parameters, x.AsSpan(rows[r], 1), gradient, single);
+            Assert.True(BitConverter.DoubleToInt64Bits(value) == BitConverter.DoubleToInt64Bits(values[r]), $"{text}: point {rows[r]}: {value:R} point by point, {values[r]:R} in the batch");
+        }
+    }
+
     [Fact]
     public void A_model_of_two_inputs_reads_each_points_row_in_the_batch()
     {

@@ -96,7 +96,7 @@ public sealed class NonlinearResamplingRecipeTests
         var unit = UnitEvaluator.Evaluate("sx40.csv", sweep, recipe, sourceSha256: new string('a', 64));
         Assert.Equal(Ruling.Pass, unit.Ruling);
         var resampling = unit.Resampling!;
-        Assert.Equal(["y0", "span", "tau", "slope_50", "at_80"], resampling.Figures.Select(f => f.Figure));
+        Assert.Equal(["y0", "span", "tau", "slope_50", "at_80", "at_3V"], resampling.Figures.Select(f => f.Figure));
         Assert.Equal(1000, resampling.Bootstrap!.Value.Requested);
         Assert.Equal(0, resampling.Bootstrap.Value.Failed);
 
@@ -108,9 +108,12 @@ public sealed class NonlinearResamplingRecipeTests
         Assert.Equal(bca.Low, judged.Low);
         Assert.Equal(bca.High, judged.High);
 
-        // The inverse prediction is not resampled; the derived figures centre on the curve's values.
-        Assert.Null(resampling.For("at_3V"));
+        // The derived figures centre on the curve's values; the inverse prediction's estimate is the
+        // full-data root itself, found by the same rule (common practice: a resampled figure's
+        // estimate is the figure on all the data).
         Assert.Equal(unit.Curve.Single(c => c.Name == "at_80").Value, resampling.For("at_80")!.Estimate, 1e-14);
+        Assert.Equal(unit.Curve.Single(c => c.Name == "at_3V").Value, resampling.For("at_3V")!.Estimate);
+        Assert.NotNull(resampling.For("at_3V")!.Bootstrap!.Bca);
 
         // The bootstrap SE of span is the t SE to Monte-Carlo accuracy (1/sqrt(2B) = 2.2 % at B = 1000)
         // and the narrowing of the pairs bootstrap, sqrt((n - p)/n) = 0.93 at n = 21 (docs/uncertainty.md, Coverage).
@@ -121,13 +124,14 @@ public sealed class NonlinearResamplingRecipeTests
         Assert.Equal("pairs", record.ResamplingScheme);
         Assert.Equal(1000, record.ResamplingResamples);
         Assert.Equal(0, record.ResamplingFailed);
-        Assert.Equal(5 * 4, record.Resampling.Count); // five figures, by jackknife, percentile, basic and BCa
+        Assert.Equal(6 * 4, record.Resampling.Count); // six figures, by jackknife, percentile, basic and BCa
         Assert.Equal("bootstrap-bca", record.LimitResults.Single(l => l.Figure == "span").Interval);
     }
 
     [Fact]
-    public void A_limit_that_judges_the_bootstrap_interval_of_an_inverse_prediction_is_refused_where_it_is_written()
+    public void A_limit_that_judges_the_bootstrap_interval_of_an_inverse_prediction_is_accepted_and_judges_the_resampled_roots()
     {
+        // Once refused (InverseNotResampled): the jackknife and bootstrap now resample inverse_at.
         var recipe = Bind("""
             decision:
               rule: guarded
@@ -136,32 +140,24 @@ public sealed class NonlinearResamplingRecipeTests
               at_3V: { inverse_at: 3.0 }
             limits:
               span: { min: 3.9, max: 4.1 }
-              at_3V: { min: 26, max: 33 }
+              at_3V: { min: 0, max: 100 }
             resampling: { seed: 1, bootstrap: pairs, resamples: 1000, max_failed_percent: 5 }
             """);
-        Assert.False(recipe.IsSuccess);
-        var problem = Assert.Single(recipe.Problems);
-        Assert.Equal("recipe.contradiction", problem.Code);
-        Assert.StartsWith("the limit on 'at_3V' judges its bootstrap-percentile interval, but 'at_3V' is an inverse prediction", problem.Message, StringComparison.Ordinal);
-        Assert.Equal(26, problem.Location.Line);
+        Assert.True(recipe.IsSuccess, string.Join('\n', recipe.IsSuccess ? [] : recipe.Problems.Select(p => p.ToString())));
+        var limit = recipe.Value.Limits.Single(l => l.Figure == "at_3V");
+        Assert.Equal(IntervalSource.BootstrapPercentile, limit.Interval);
 
-        // Its own t interval is accepted beside the span's bootstrap interval.
-        var fixedRecipe = Bind("""
-            decision:
-              rule: guarded
-              interval: bootstrap-percentile
-            derived:
-              at_3V: { inverse_at: 3.0 }
-            limits:
-              span: { min: 3.9, max: 4.1 }
-              at_3V: { min: 26, max: 33, interval: t }
-            resampling: { seed: 1, bootstrap: pairs, resamples: 1000, max_failed_percent: 5 }
-            """);
-        Assert.True(fixedRecipe.IsSuccess, string.Join('\n', fixedRecipe.IsSuccess ? [] : fixedRecipe.Problems.Select(p => p.ToString())));
+        var unit = UnitEvaluator.Evaluate("sx40.csv", Rise(21, seed: 17), recipe.Value, sourceSha256: new string('b', 64));
+        var percentile = unit.Resampling!.For("at_3V")!.Bootstrap!.Percentile!.Value;
+        var judged = unit.Figures["at_3V"].Intervals.Single(i => i.Source == IntervalSource.BootstrapPercentile);
+        Assert.Equal(percentile.Low, judged.Low);
+        Assert.Equal(percentile.High, judged.High);
+        Assert.True(percentile.Low < unit.Curve.Single(c => c.Name == "at_3V").Value && unit.Curve.Single(c => c.Name == "at_3V").Value < percentile.High);
+        Assert.Equal(Ruling.Pass, unit.Ruling);
     }
 
     [Fact]
-    public void A_linear_models_inverse_prediction_is_not_resampled_either()
+    public void A_linear_models_inverse_prediction_is_resampled_too_and_its_intervals_reach_the_guarded_limits()
     {
         var recipe = RecipeBinder.Bind("line.yaml", """
             recipe: KP-250
@@ -179,9 +175,11 @@ public sealed class NonlinearResamplingRecipeTests
             resampling: { seed: 3, bootstrap: residual }
             """, "h").Value;
         var unit = UnitEvaluator.Evaluate("line.csv", SimulatedUnits.Line(21, 5), recipe);
-        Assert.Equal(["offset", "gain", "at_100"], unit.Resampling!.Figures.Select(f => f.Figure));
-        Assert.Empty(unit.Figures["at_20mV"].Intervals);
+        // The figures linear in the parameters first, then the roots (ResamplingAnalysis.Figures).
+        Assert.Equal(["offset", "gain", "at_100", "at_20mV"], unit.Resampling!.Figures.Select(f => f.Figure));
+        Assert.NotEmpty(unit.Figures["at_20mV"].Intervals);
         Assert.NotEmpty(unit.Figures["at_100"].Intervals);
+        Assert.Equal(unit.Curve.Single(c => c.Name == "at_20mV").Value, unit.Resampling.For("at_20mV")!.Estimate);
     }
 
     [Fact]

@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Ingest;
 using StandFit.Core.Judging;
@@ -45,10 +46,11 @@ internal static class SimulatedUnits
         }
     }
 
-    public static Recipe Recipe(ResamplingPlan? plan, LinearModel? model = null, double confidence = 0.95, ImmutableArray<FigureLimit> limits = default) =>
+    public static Recipe Recipe(ResamplingPlan? plan, LinearModel? model = null, double confidence = 0.95, ImmutableArray<FigureLimit> limits = default, ImmutableArray<DerivedFigure> derived = default) =>
         new("simulated", "1", ["SIM"], new ColumnMap("x", "y", "leg", null), new ColumnUnits("kPa", "mV"), model ?? Polynomial.StraightLine, ConfidenceLevel.Of(confidence), limits.IsDefault ? [] : limits, null, new string('0', 64), "simulated.yaml")
         {
             Resampling = plan,
+            Derived = derived.IsDefault ? [] : derived,
         };
 
     public static FitResult Fit(Sweep sweep, LinearModel? model = null)

@@ -83,6 +83,66 @@ public sealed partial class ModelExpression
         }
     }
 
+    /// <summary>The scratch length <see cref="EvaluateBatch"/> needs for <paramref name="points"/> points.</summary>
+    internal int ValueBatchScratchLength(int points) => MaxStack * points;
+
+    /// <summary>
+    /// The model's value alone at the points <paramref name="rows"/> into <paramref name="values"/>:
+    /// <see cref="EvaluateWithGradientBatch"/> with no gradient slots. The value of every operation is
+    /// computed by the same code in the same order whatever the number of gradient slots, so the
+    /// values are bit for bit those of <see cref="EvaluateWithGradientBatch"/> and
+    /// <see cref="EvaluateWithGradient"/>. <paramref name="scratch"/> holds at least
+    /// <see cref="ValueBatchScratchLength"/> values.
+    /// </summary>
+    internal void EvaluateBatch(ReadOnlySpan<double> parameters, ReadOnlySpan<double> variables, ReadOnlySpan<int> rows, Span<double> values, Span<double> scratch)
+    {
+        var v = VariableNames.Length;
+        var m = rows.Length;
+        if (parameters.Length != ParameterNames.Length || values.Length < m || scratch.Length < ValueBatchScratchLength(m))
+        {
+            throw new ArgumentException("The batch's spans do not match the model and the points.");
+        }
+
+        var top = -1;
+        foreach (ref readonly var instruction in _program.AsSpan())
+        {
+            switch (instruction.Operation)
+            {
+                case Operation.Constant:
+                    scratch.Slice(++top * m, m).Fill(instruction.Constant);
+                    continue;
+                case Operation.Variable:
+                    {
+                        var target = scratch.Slice(++top * m, m);
+                        for (var r = 0; r < m; r++)
+                        {
+                            target[r] = variables[(rows[r] * v) + instruction.Index];
+                        }
+
+                        continue;
+                    }
+
+                case Operation.Parameter:
+                    scratch.Slice(++top * m, m).Fill(parameters[instruction.Index]);
+                    continue;
+            }
+
+            if (IsBinary(instruction.Operation))
+            {
+                var a = scratch.Slice((top - 1) * m, m);
+                var b = scratch.Slice(top * m, m);
+                top--;
+                BinaryBatch(instruction.Operation, instruction.Activity, a, b, m, 0);
+            }
+            else
+            {
+                UnaryBatch(instruction, scratch.Slice(top * m, m), m, 0);
+            }
+        }
+
+        scratch[..m].CopyTo(values);
+    }
+
     /// <summary><see cref="Binary"/> at every point: a := a op b; slots are [values; gradient 1; ...; gradient p], m each.</summary>
     private static void BinaryBatch(Operation operation, Activity activity, Span<double> a, ReadOnlySpan<double> b, int m, int p)
     {

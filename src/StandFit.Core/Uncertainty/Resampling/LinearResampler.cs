@@ -25,12 +25,33 @@ public enum ResampleFailure
 
     /// <summary>A nonlinear refit converged onto one of the recipe's parameter bounds: a constrained estimate, not a least-squares one.</summary>
     AtBound,
+
+    /// <summary>The refitted curve gives an inverse_at figure's output nowhere in the calibrated range (no step of the grid holds a root).</summary>
+    NoRootInRange,
+
+    /// <summary>The refitted curve gives an inverse_at figure's output at more than one stimulus in the calibrated range (not monotonic there).</summary>
+    SeveralRoots,
 }
 
-/// <summary>Counts of one bootstrap run: resamples asked for, fitted, and failed by cause (the last two only for a nonlinear model).</summary>
-public readonly record struct BootstrapCounts(int Requested, int Succeeded, int DegenerateStimulus, int RankDeficient, int NonFinite, int NotConverged = 0, int AtBound = 0)
+/// <summary>
+/// Counts of one bootstrap run: resamples asked for, fitted, and failed by cause (not converged and
+/// at a bound only for a nonlinear model; no root and several roots only with inverse_at figures).
+/// </summary>
+public readonly record struct BootstrapCounts(int Requested, int Succeeded, int DegenerateStimulus, int RankDeficient, int NonFinite, int NotConverged = 0, int AtBound = 0, int NoRootInRange = 0, int SeveralRoots = 0)
 {
-    public int Failed => DegenerateStimulus + RankDeficient + NonFinite + NotConverged + AtBound;
+    public int Failed => DegenerateStimulus + RankDeficient + NonFinite + NotConverged + AtBound + NoRootInRange + SeveralRoots;
+
+    /// <summary>The counts with one more failure of <paramref name="cause"/> (not <see cref="ResampleFailure.None"/>).</summary>
+    internal BootstrapCounts With(ResampleFailure cause) => cause switch
+    {
+        ResampleFailure.DegenerateStimulus => this with { DegenerateStimulus = DegenerateStimulus + 1 },
+        ResampleFailure.RankDeficient => this with { RankDeficient = RankDeficient + 1 },
+        ResampleFailure.NotConverged => this with { NotConverged = NotConverged + 1 },
+        ResampleFailure.AtBound => this with { AtBound = AtBound + 1 },
+        ResampleFailure.NoRootInRange => this with { NoRootInRange = NoRootInRange + 1 },
+        ResampleFailure.SeveralRoots => this with { SeveralRoots = SeveralRoots + 1 },
+        _ => this with { NonFinite = NonFinite + 1 },
+    };
 }
 
 /// <summary>
@@ -45,8 +66,10 @@ public readonly record struct BootstrapCounts(int Requested, int Succeeded, int 
 /// which is the identity for the original sample, is factorised (Cholesky) per resample. It is
 /// never X'X: its condition number measures how unevenly the resample weights the points, not the
 /// design's conditioning, which the QR has already dealt with. For the residual and wild schemes
-/// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. No
-/// allocation happens per resample; the caller provides the output buffers.
+/// the design is fixed, W = I, and b* = b_hat + M Q' e* needs no factorisation at all. An
+/// inverse_at figure is the root of each resample's curve f(x; b*) = y0 (<see cref="LinearInverse"/>);
+/// a resample without exactly one root in the calibrated range fails. No allocation happens per
+/// resample; the caller provides the output buffers.
 /// </summary>
 public sealed class LinearResampler : IResampler
 {
@@ -56,6 +79,8 @@ public sealed class LinearResampler : IResampler
     private readonly int _n;
     private readonly int _p;
     private readonly int _f;
+    private readonly int _fLinear;         // figures that are linear in b (the rest are inverse_at roots)
+    private readonly LinearInverse? _inverse;
     private readonly int _stride;          // p(p+1)/2 + p
     private readonly int _triangle;        // p(p+1)/2
     private readonly double[] _q;          // n x p row-major: thin Q
@@ -75,7 +100,12 @@ public sealed class LinearResampler : IResampler
 
     /// <param name="fit">The fit on the original data.</param>
     /// <param name="figureGradients">f x p row-major: figure k = row k . b (a parameter is a unit row; a derived figure its gradient).</param>
-    public LinearResampler(FitResult fit, ReadOnlySpan<double> figureGradients)
+    /// <param name="inverseResponses">
+    /// y0 of each inverse_at figure, resampled after the figures of <paramref name="figureGradients"/>:
+    /// the root of each resample's curve (<see cref="LinearInverse"/>); each must be solved on the fit
+    /// (<see cref="Curve.InversePrediction.RootOf"/>). Only for a model of one input.
+    /// </param>
+    public LinearResampler(FitResult fit, ReadOnlySpan<double> figureGradients, ReadOnlySpan<double> inverseResponses = default)
     {
         ArgumentNullException.ThrowIfNull(fit);
         _n = fit.Count;
@@ -85,7 +115,13 @@ public sealed class LinearResampler : IResampler
             throw new ArgumentException("Figure gradients are f x p, row-major.", nameof(figureGradients));
         }
 
-        _f = figureGradients.Length / _p;
+        _fLinear = figureGradients.Length / _p;
+        _f = _fLinear + inverseResponses.Length;
+        if (!inverseResponses.IsEmpty && fit.InputCount != 1)
+        {
+            throw new ArgumentException("inverse_at figures are resampled for a model of one input.", nameof(inverseResponses));
+        }
+
         _triangle = _p * (_p + 1) / 2;
         _stride = _triangle + _p;
         _intercept = fit.Model.HasIntercept;
@@ -98,9 +134,9 @@ public sealed class LinearResampler : IResampler
         var (q, m) = Factorise(fit);
         _q = q;
 
-        _figureMap = new double[_f * _p];
+        _figureMap = new double[_fLinear * _p];
         _estimates = new double[_f];
-        for (var k = 0; k < _f; k++)
+        for (var k = 0; k < _fLinear; k++)
         {
             var g = figureGradients.Slice(k * _p, _p);
             var value = 0.0;
@@ -119,6 +155,15 @@ public sealed class LinearResampler : IResampler
                 }
 
                 _figureMap[(k * _p) + c] = sum;
+            }
+        }
+
+        if (!inverseResponses.IsEmpty)
+        {
+            _inverse = new LinearInverse(fit, m, inverseResponses);
+            for (var d = 0; d < _inverse.Count; d++)
+            {
+                _estimates[_fLinear + d] = _inverse.Estimate(d);
             }
         }
 
@@ -190,6 +235,7 @@ public sealed class LinearResampler : IResampler
         Span<double> acc = stackalloc double[_stride];
         Span<double> work = stackalloc double[(_p * _p) + _p];
         Span<double> figures = stackalloc double[_f];
+        Span<double> coords = stackalloc double[_p];
         var weights = new double[_nPad];
         for (var g = 0; g < groups; g++)
         {
@@ -199,10 +245,14 @@ public sealed class LinearResampler : IResampler
             }
 
             Accumulate(weights, acc);
-            var failure = Solve(acc, work, figures);
+            var failure = Solve(acc, work, figures, coords);
             if (failure == ResampleFailure.RankDeficient)
             {
                 failure = Classify(weights);
+            }
+            else if (failure == ResampleFailure.None && _inverse is not null)
+            {
+                failure = _inverse.Compute(coords, figures[_fLinear..]);
             }
 
             failures[g] = failure;
@@ -247,11 +297,12 @@ public sealed class LinearResampler : IResampler
         Span<double> acc = stackalloc double[_strideV];
         Span<double> work = stackalloc double[(_p * _p) + _p];
         Span<double> figures = stackalloc double[_f];
+        Span<double> coords = stackalloc double[_p];
         var drawn = new int[_n];
         var counts = new double[_nPad];
         var bound = (uint)_n;
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
-        int good = 0, degenerate = 0, deficient = 0, nonFinite = 0;
+        int good = 0, degenerate = 0, deficient = 0, nonFinite = 0, noRoot = 0, severalRoots = 0;
         var vector = _strideV <= 16;
         for (var r = 0; r < resamples; r++)
         {
@@ -271,11 +322,15 @@ public sealed class LinearResampler : IResampler
                 drawn.CopyTo(recordIndices.Slice(r * _n, _n));
             }
 
-            var failure = Solve(acc, work, figures);
+            var failure = Solve(acc, work, figures, coords);
             if (failure == ResampleFailure.RankDeficient)
             {
                 CountDrawn(drawn, counts);
                 failure = Classify(counts);
+            }
+            else if (failure == ResampleFailure.None && _inverse is not null)
+            {
+                failure = _inverse.Compute(coords, figures[_fLinear..]);
             }
 
             switch (failure)
@@ -294,13 +349,19 @@ public sealed class LinearResampler : IResampler
                 case ResampleFailure.RankDeficient:
                     deficient++;
                     break;
+                case ResampleFailure.NoRootInRange:
+                    noRoot++;
+                    break;
+                case ResampleFailure.SeveralRoots:
+                    severalRoots++;
+                    break;
                 default:
                     nonFinite++;
                     break;
             }
         }
 
-        return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite);
+        return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite, NoRootInRange: noRoot, SeveralRoots: severalRoots);
     }
 
     private static void CountDrawn(int[] drawn, double[] counts)
@@ -427,8 +488,9 @@ public sealed class LinearResampler : IResampler
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
         var drawn = new int[_n];
         var errors = new double[_n];
+        Span<double> roots = stackalloc double[_f - _fLinear];
+        var counts = new BootstrapCounts(resamples, 0, 0, 0, 0);
         var good = 0;
-        var nonFinite = 0;
         for (var r = 0; r < resamples; r++)
         {
             ResampleDraws.Errors(scheme, ref rng, _adjusted, _centred, threshold, drawn, errors);
@@ -439,7 +501,7 @@ public sealed class LinearResampler : IResampler
 
             ProjectErrors(errors, acc);
             var finite = true;
-            for (var k = 0; k < _f; k++)
+            for (var k = 0; k < _fLinear; k++)
             {
                 var value = _estimates[k];
                 for (var c = 0; c < _p; c++)
@@ -451,17 +513,27 @@ public sealed class LinearResampler : IResampler
                 output[(k * resamples) + good] = value;
             }
 
-            if (finite)
+            var failure = finite ? ResampleFailure.None : ResampleFailure.NonFinite;
+            if (failure == ResampleFailure.None && _inverse is not null)
+            {
+                failure = _inverse.Compute(acc[.._p], roots);
+                for (var d = 0; d < roots.Length; d++)
+                {
+                    output[((_fLinear + d) * resamples) + good] = roots[d];
+                }
+            }
+
+            if (failure == ResampleFailure.None)
             {
                 good++;
             }
             else
             {
-                nonFinite++;
+                counts = counts.With(failure);
             }
         }
 
-        return new BootstrapCounts(resamples, good, 0, 0, nonFinite);
+        return counts with { Succeeded = good };
     }
 
     /// <summary>acc = Q' e (p values): for p &lt;= 4 one vector per point, even and odd points in two accumulators added at the end; a fixed order.</summary>
@@ -499,17 +571,17 @@ public sealed class LinearResampler : IResampler
     }
 
     /// <summary>Solves (Q'WQ) a = Q'We by Cholesky (acc holds the packed upper triangle, then the right side) and maps a to the figures.</summary>
-    private ResampleFailure Solve(ReadOnlySpan<double> acc, Span<double> work, Span<double> figures)
+    private ResampleFailure Solve(ReadOnlySpan<double> acc, Span<double> work, Span<double> figures, Span<double> coords)
     {
         var p = _p;
         if (p == 2)
         {
-            return Solve2(acc, figures);
+            return Solve2(acc, figures, coords);
         }
 
         if (p == 3)
         {
-            return Solve3(acc, figures);
+            return Solve3(acc, figures, coords);
         }
 
         var l = work[..(p * p)];
@@ -574,7 +646,7 @@ public sealed class LinearResampler : IResampler
         }
 
         var finite = true;
-        for (var k = 0; k < _f; k++)
+        for (var k = 0; k < _fLinear; k++)
         {
             var value = _estimates[k];
             for (var c = 0; c < p; c++)
@@ -586,11 +658,12 @@ public sealed class LinearResampler : IResampler
             finite &= double.IsFinite(value);
         }
 
+        a.CopyTo(coords);
         return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 
     /// <summary>The 2 x 2 case of <see cref="Solve"/>, written out as an LDL' factorisation (the same pivots as Cholesky, no square roots).</summary>
-    private ResampleFailure Solve2(ReadOnlySpan<double> acc, Span<double> figures)
+    private ResampleFailure Solve2(ReadOnlySpan<double> acc, Span<double> figures, Span<double> coords)
     {
         double g00 = acc[0], g01 = acc[1], g11 = acc[2], c0 = acc[3], c1 = acc[4];
         if (!(g00 > PivotTolerance * g00))
@@ -610,13 +683,15 @@ public sealed class LinearResampler : IResampler
         var a1 = (c1 - (l10 * c0)) / d1;
         var a0 = (c0 - (g01 * a1)) * inverse0;
         var finite = true;
-        for (var k = 0; k < _f; k++)
+        for (var k = 0; k < _fLinear; k++)
         {
             var value = _estimates[k] + (_figureMap[k * 2] * a0) + (_figureMap[(k * 2) + 1] * a1);
             figures[k] = value;
             finite &= double.IsFinite(value);
         }
 
+        coords[0] = a0;
+        coords[1] = a1;
         return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 
@@ -624,7 +699,7 @@ public sealed class LinearResampler : IResampler
     /// The 3 x 3 case of <see cref="Solve"/>, written out as an LDL' factorisation: the same pivots
     /// d_j as Cholesky's squared diagonal, tested against the same tolerance, without square roots.
     /// </summary>
-    private ResampleFailure Solve3(ReadOnlySpan<double> acc, Span<double> figures)
+    private ResampleFailure Solve3(ReadOnlySpan<double> acc, Span<double> figures, Span<double> coords)
     {
         double g00 = acc[0], g01 = acc[1], g02 = acc[2], g11 = acc[3], g12 = acc[4], g22 = acc[5];
         double c0 = acc[6], c1 = acc[7], c2 = acc[8];
@@ -657,13 +732,16 @@ public sealed class LinearResampler : IResampler
         var a1 = (y1 * inverse1) - (l21 * a2);
         var a0 = (c0 * inverse0) - (l10 * a1) - (l20 * a2);
         var finite = true;
-        for (var k = 0; k < _f; k++)
+        for (var k = 0; k < _fLinear; k++)
         {
             var value = _estimates[k] + (_figureMap[k * 3] * a0) + (_figureMap[(k * 3) + 1] * a1) + (_figureMap[(k * 3) + 2] * a2);
             figures[k] = value;
             finite &= double.IsFinite(value);
         }
 
+        coords[0] = a0;
+        coords[1] = a1;
+        coords[2] = a2;
         return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
     }
 

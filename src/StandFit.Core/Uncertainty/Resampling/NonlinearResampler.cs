@@ -40,7 +40,10 @@ namespace StandFit.Core.Uncertainty.Resampling;
 /// <para>
 /// The figures of a resample are its parameters and, from the refitted curve, each derived figure
 /// that is a function of the parameters alone: sensitivity_at (the expression's symbolic
-/// derivative), value_at and band_at (the curve's value). The leverage of the residual and wild
+/// derivative), value_at and band_at (the curve's value), and inverse_at (the root of the refitted
+/// curve, <see cref="NonlinearInverse"/>; a refit whose curve does not reach the output exactly once
+/// in the calibrated range fails as <see cref="ResampleFailure.NoRootInRange"/> or
+/// <see cref="ResampleFailure.SeveralRoots"/>). The leverage of the residual and wild
 /// schemes is the tangent-plane leverage of the fit. The draws are those of
 /// <see cref="LinearResampler"/> (the same indices and weights from the same stream). Every buffer
 /// is allocated by the constructor; a resample allocates nothing, except that the first hand-over
@@ -76,6 +79,9 @@ public sealed class NonlinearResampler : IResampler
     private readonly double[] _theta0;
     private readonly double[] _diag;        // column norms of the fit's Jacobian (1 for a zero column)
     private readonly DerivedKind[] _derivedKinds;
+    private readonly int[] _inverseSlots;   // the figure index of each inverse_at figure
+    private readonly double[] _inverseValues;
+    private readonly NonlinearInverse? _inverse;
     private readonly double[] _derivedAt;
     private readonly double[] _estimates;
     private readonly int[] _setOf;          // each point's set point (distinct input row), 0 .. sets - 1
@@ -116,7 +122,11 @@ public sealed class NonlinearResampler : IResampler
 
     /// <param name="fit">The converged fit on the original data (not on a bound).</param>
     /// <param name="model">The recipe's expression model (its iteration limit, tolerances and bounds).</param>
-    /// <param name="derived">The derived figures to resample besides the parameters: sensitivity_at, value_at or band_at, of a model of one input.</param>
+    /// <param name="derived">
+    /// The derived figures to resample besides the parameters, of a model of one input: sensitivity_at,
+    /// value_at, band_at, and inverse_at (the root of each refitted curve, <see cref="NonlinearInverse"/>;
+    /// each must be solved on the fit, <see cref="Curve.InversePrediction.RootOf"/>).
+    /// </param>
     public NonlinearResampler(NonlinearFitResult fit, ExpressionModel model, ImmutableArray<DerivedFigure> derived)
     {
         ArgumentNullException.ThrowIfNull(fit);
@@ -132,9 +142,9 @@ public sealed class NonlinearResampler : IResampler
         }
 
         derived = derived.IsDefault ? [] : derived;
-        if (derived.Any(d => d.Kind == DerivedKind.InverseAt) || (derived.Length > 0 && fit.InputCount != 1))
+        if (derived.Length > 0 && fit.InputCount != 1)
         {
-            throw new ArgumentException("Only sensitivity_at, value_at and band_at of a model of one input are resampled.", nameof(derived));
+            throw new ArgumentException("Derived figures are resampled for a model of one input.", nameof(derived));
         }
 
         _model = model.Expression;
@@ -179,6 +189,13 @@ public sealed class NonlinearResampler : IResampler
 
         _derivedKinds = [.. derived.Select(d => d.Kind)];
         _derivedAt = [.. derived.Select(d => d.At)];
+        _inverseSlots = [.. Enumerable.Range(0, derived.Length).Where(d => derived[d].Kind == DerivedKind.InverseAt).Select(d => _p + d)];
+        _inverseValues = new double[_inverseSlots.Length];
+        if (_inverseSlots.Length > 0)
+        {
+            _inverse = new NonlinearInverse(_model, _theta0, fit.InputMin[0], fit.InputMax[0], [.. _inverseSlots.Select(slot => _derivedAt[slot - _p])]);
+        }
+
         _slope = _derivedKinds.Contains(DerivedKind.SensitivityAt) ? _model.InputDerivative(0) : null;
         var scratchLength = Math.Max(_model.GradientScratchLength, _slope?.GradientScratchLength ?? 0);
 
@@ -222,6 +239,12 @@ public sealed class NonlinearResampler : IResampler
         if (FiguresAt(_theta0, _estimates) != ResampleFailure.None)
         {
             throw new ArgumentException("A derived figure is not finite on the fitted curve.", nameof(derived));
+        }
+
+        // An inverse figure's estimate is its root as the full-data figure finds it (from the middle of its step).
+        for (var d = 0; d < _inverseSlots.Length; d++)
+        {
+            _estimates[_inverseSlots[d]] = _inverse!.Estimate(d);
         }
     }
 
@@ -292,7 +315,7 @@ public sealed class NonlinearResampler : IResampler
         }
 
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
-        int good = 0, degenerate = 0, deficient = 0, nonFinite = 0, notConverged = 0, atBound = 0;
+        int good = 0, degenerate = 0, deficient = 0, nonFinite = 0, notConverged = 0, atBound = 0, noRoot = 0, severalRoots = 0;
         if (scheme == BootstrapScheme.Pairs)
         {
             _residuals.CopyTo(_start, 0);
@@ -356,13 +379,19 @@ public sealed class NonlinearResampler : IResampler
                 case ResampleFailure.AtBound:
                     atBound++;
                     break;
+                case ResampleFailure.NoRootInRange:
+                    noRoot++;
+                    break;
+                case ResampleFailure.SeveralRoots:
+                    severalRoots++;
+                    break;
                 default:
                     nonFinite++;
                     break;
             }
         }
 
-        return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite, notConverged, atBound);
+        return new BootstrapCounts(resamples, good, degenerate, deficient, nonFinite, notConverged, atBound, noRoot, severalRoots);
     }
 
     /// <summary>
@@ -675,6 +704,11 @@ public sealed class NonlinearResampler : IResampler
 
         for (var d = 0; d < _derivedKinds.Length; d++)
         {
+            if (_derivedKinds[d] == DerivedKind.InverseAt)
+            {
+                continue;
+            }
+
             _point[0] = _derivedAt[d];
             var expression = _derivedKinds[d] == DerivedKind.SensitivityAt ? _slope! : _model;
             var value = expression.EvaluateWithGradient(theta, _point.AsSpan(0, 1), _gradient, _scratch);
@@ -682,7 +716,26 @@ public sealed class NonlinearResampler : IResampler
             finite &= double.IsFinite(value);
         }
 
-        return finite ? ResampleFailure.None : ResampleFailure.NonFinite;
+        if (!finite)
+        {
+            return ResampleFailure.NonFinite;
+        }
+
+        if (_inverse is not null)
+        {
+            var failure = _inverse.Compute(theta, _inverseValues);
+            if (failure != ResampleFailure.None)
+            {
+                return failure;
+            }
+
+            for (var d = 0; d < _inverseSlots.Length; d++)
+            {
+                figures[_inverseSlots[d]] = _inverseValues[d];
+            }
+        }
+
+        return ResampleFailure.None;
     }
 
     /// <summary>Distinct set points among the points of positive weight.</summary>

@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using StandFit.Core.Curve;
 using StandFit.Core.Evaluation;
 using StandFit.Core.Fitting;
 using StandFit.Core.Fitting.Nonlinear;
@@ -125,8 +126,8 @@ public static class ResamplingAnalysis
         ArgumentNullException.ThrowIfNull(sweep);
         ArgumentNullException.ThrowIfNull(recipe);
         ArgumentNullException.ThrowIfNull(plan);
-        var (names, units, gradients) = Figures(fit.Model, recipe);
-        var kernel = new LinearResampler(fit, gradients);
+        var (names, units, gradients, inverse) = Figures(fit, recipe);
+        var kernel = new LinearResampler(fit, gradients, inverse);
         return Run(kernel, names, units, sweep, plan, streamSeed, recipe.Confidence);
     }
 
@@ -138,22 +139,24 @@ public static class ResamplingAnalysis
         ArgumentNullException.ThrowIfNull(sweep);
         ArgumentNullException.ThrowIfNull(recipe);
         ArgumentNullException.ThrowIfNull(plan);
-        var (names, units, derived) = Figures(model, recipe);
+        var (names, units, derived) = Figures(fit, model, recipe);
         var kernel = new NonlinearResampler(fit, model, derived);
         return Run(kernel, names, units, sweep, plan, streamSeed, recipe.Confidence);
     }
 
     /// <summary>
     /// The figures an expression model's resampling reports: every parameter, then every derived
-    /// figure that is a function of the parameters alone (sensitivity_at, value_at, band_at). An
-    /// inverse prediction (inverse_at) is a root of the refitted curve, not resampled: a limit that
-    /// judges its resampling interval is not evaluated.
+    /// figure in the recipe's order. An inverse prediction (inverse_at) is the root of each refitted
+    /// curve; one that the fit itself does not solve (its output outside the curve's range, or
+    /// reached more than once) has no figure to resample and is left out, and a limit that judges
+    /// its resampling interval is not evaluated, as for its t interval.
     /// </summary>
-    public static (ImmutableArray<string> Names, ImmutableArray<string> Units, ImmutableArray<DerivedFigure> Derived) Figures(ExpressionModel model, Recipe recipe)
+    public static (ImmutableArray<string> Names, ImmutableArray<string> Units, ImmutableArray<DerivedFigure> Derived) Figures(NonlinearFitResult fit, ExpressionModel model, Recipe recipe)
     {
+        ArgumentNullException.ThrowIfNull(fit);
         ArgumentNullException.ThrowIfNull(model);
         ArgumentNullException.ThrowIfNull(recipe);
-        var derived = Resampled(recipe);
+        var derived = Resampled(fit, recipe);
         var names = ImmutableArray.CreateBuilder<string>();
         var units = ImmutableArray.CreateBuilder<string>();
         foreach (var name in model.ParameterNames)
@@ -165,22 +168,38 @@ public static class ResamplingAnalysis
         foreach (var d in derived)
         {
             names.Add(d.Name);
-            units.Add(d.Kind == DerivedKind.SensitivityAt ? recipe.UnitOfSensitivity() : recipe.Units.Output);
+            units.Add(UnitOf(d, recipe));
         }
 
         return (names.ToImmutable(), units.ToImmutable(), derived);
     }
 
-    /// <summary>The recipe's derived figures that resampling reports: all but the inverse predictions.</summary>
-    private static ImmutableArray<DerivedFigure> Resampled(Recipe recipe) => [.. recipe.Derived.Where(d => d.Kind != DerivedKind.InverseAt)];
-
-    /// <summary>The figures resampled: every parameter, then every derived figure, with units and gradients (f x p).</summary>
-    public static (ImmutableArray<string> Names, ImmutableArray<string> Units, double[] Gradients) Figures(LinearModel model, Recipe recipe)
+    /// <summary>The unit of a derived figure: the sensitivity's, the stimulus's for an inverse prediction, else the output's.</summary>
+    private static string UnitOf(DerivedFigure d, Recipe recipe) => d.Kind switch
     {
-        ArgumentNullException.ThrowIfNull(model);
+        DerivedKind.SensitivityAt => recipe.UnitOfSensitivity(),
+        DerivedKind.InverseAt => recipe.Units.Stimulus,
+        _ => recipe.Units.Output,
+    };
+
+    /// <summary>The recipe's derived figures that resampling reports: all but an inverse prediction that the fit itself does not solve.</summary>
+    private static ImmutableArray<DerivedFigure> Resampled(IFitResult fit, Recipe recipe) =>
+        [.. recipe.Derived.Where(d => d.Kind != DerivedKind.InverseAt || (fit.InputCount == 1 && InversePrediction.RootOf(fit, d.At).Status == InverseStatus.Solved))];
+
+    /// <summary>
+    /// The figures resampled: every parameter, then every derived figure linear in the parameters
+    /// (sensitivity_at, value_at, band_at) with its gradient (f x p), then every inverse prediction
+    /// that the fit solves (its output y0 in <c>Inverse</c>: the root of each resample's curve).
+    /// </summary>
+    public static (ImmutableArray<string> Names, ImmutableArray<string> Units, double[] Gradients, double[] Inverse) Figures(FitResult fit, Recipe recipe)
+    {
+        ArgumentNullException.ThrowIfNull(fit);
         ArgumentNullException.ThrowIfNull(recipe);
+        var model = fit.Model;
         var p = model.ParameterCount;
-        var resampled = Resampled(recipe);
+        var all = Resampled(fit, recipe);
+        var resampled = all.Where(d => d.Kind != DerivedKind.InverseAt).ToImmutableArray();
+        var inverse = all.Where(d => d.Kind == DerivedKind.InverseAt).ToImmutableArray();
         var names = ImmutableArray.CreateBuilder<string>();
         var units = ImmutableArray.CreateBuilder<string>();
         var gradients = new double[(p + resampled.Length) * p];
@@ -209,7 +228,13 @@ public static class ResamplingAnalysis
             names.Add(derived.Name);
         }
 
-        return (names.ToImmutable(), units.ToImmutable(), gradients);
+        foreach (var d in inverse)
+        {
+            names.Add(d.Name);
+            units.Add(UnitOf(d, recipe));
+        }
+
+        return (names.ToImmutable(), units.ToImmutable(), gradients, [.. inverse.Select(d => d.At)]);
     }
 
     private static ResamplingResult Run(IResampler kernel, ImmutableArray<string> names, ImmutableArray<string> units, Sweep sweep, ResamplingPlan plan, ulong streamSeed, ConfidenceLevel level)
@@ -239,7 +264,10 @@ public static class ResamplingAnalysis
         }
         else
         {
-            findings.Add(new Finding(ReasonCodes.ResamplingJackknifeUnavailable.Code, ReasonCodes.ResamplingJackknifeUnavailable.Kind, Messages.JackknifeUnavailable(InfluenceFigure, sweep.SourceLines[firstFailed])));
+            var message = leaveOneFailures[firstFailed] is ResampleFailure.NoRootInRange or ResampleFailure.SeveralRoots
+                ? Messages.JackknifeNoInverse(sweep.SourceLines[firstFailed], leaveOneFailures[firstFailed] == ResampleFailure.SeveralRoots)
+                : Messages.JackknifeUnavailable(InfluenceFigure, sweep.SourceLines[firstFailed]);
+            findings.Add(new Finding(ReasonCodes.ResamplingJackknifeUnavailable.Code, ReasonCodes.ResamplingJackknifeUnavailable.Kind, message));
         }
 
         // The recipe's jackknife, when it deletes groups.
@@ -289,7 +317,7 @@ public static class ResamplingAnalysis
                     findings.Add(new Finding(
                         ReasonCodes.ResamplingTooManyFailures.Code,
                         ReasonCodes.ResamplingTooManyFailures.Kind,
-                        Messages.TooManyFailedResamples(run.Failed, run.Requested, percent, maxPercent, run.DegenerateStimulus, run.RankDeficient, run.NonFinite, run.NotConverged, run.AtBound)));
+                        Messages.TooManyFailedResamples(run.Failed, run.Requested, percent, maxPercent, run.DegenerateStimulus, run.RankDeficient, run.NonFinite, run.NotConverged, run.AtBound, run.NoRootInRange, run.SeveralRoots)));
                 }
             }
         }
