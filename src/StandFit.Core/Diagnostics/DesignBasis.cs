@@ -46,7 +46,22 @@ internal sealed class DesignBasis
             }
         }
 
-        return FromColumns(columns, n, p, fit.HasIntercept);
+        // Gram-Schmidt in place; the design is filled again for the rare Householder fallback, so no copy is kept.
+        if (GramSchmidtTwice(columns, n, p))
+        {
+            return new DesignBasis(columns, n, p, fit.HasIntercept);
+        }
+
+        for (var i = 0; i < n; i++)
+        {
+            fit.FillDesignRow(i, row);
+            for (var j = 0; j < p; j++)
+            {
+                columns[(j * n) + i] = row[j];
+            }
+        }
+
+        return Householder(columns, n, p, fit.HasIntercept);
     }
 
     /// <summary>
@@ -59,6 +74,12 @@ internal sealed class DesignBasis
     public static DesignBasis FromColumns(double[] columns, int n, int p, bool hasConstant)
     {
         var original = columns.ToArray();
+        return GramSchmidtTwice(columns, n, p) ? new DesignBasis(columns, n, p, hasConstant) : Householder(original, n, p, hasConstant);
+    }
+
+    /// <summary>Gram-Schmidt twice on the columns, in place; false when a column is (nearly) dependent on the earlier ones (the columns are then spoilt).</summary>
+    private static bool GramSchmidtTwice(double[] columns, int n, int p)
+    {
         for (var j = 0; j < p; j++)
         {
             var column = columns.AsSpan(j * n, n);
@@ -78,12 +99,12 @@ internal sealed class DesignBasis
                 // A column (nearly) dependent on the earlier ones: Householder QR with pivoting instead.
                 if (!Normalise(column, pass == 0 ? 1e-8 : 0.5))
                 {
-                    return Householder(original, n, p, hasConstant);
+                    return false;
                 }
             }
         }
 
-        return new DesignBasis(columns, n, p, hasConstant);
+        return true;
     }
 
     /// <summary>The thin Q of the Householder QR (with column pivoting) of the equilibrated columns.</summary>

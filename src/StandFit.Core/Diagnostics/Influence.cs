@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.InteropServices;
 using StandFit.Core.Fitting;
 using StandFit.Core.Uncertainty;
 
@@ -74,7 +75,8 @@ public static class Influence
             cooks[i] = e * e * h / (p * s2 * oneMinusH * oneMinusH);
         }
 
-        return new PointDiagnostics(fit.Leverage, [.. standardized], [.. studentized], [.. cooks]);
+        // The arrays are this result's own: wrapped, not copied.
+        return new PointDiagnostics(fit.Leverage, ImmutableCollectionsMarshal.AsImmutableArray(standardized), ImmutableCollectionsMarshal.AsImmutableArray(studentized), ImmutableCollectionsMarshal.AsImmutableArray(cooks));
     }
 
     public static OutlierTestResult OutlierTest(IFitResult fit, PointDiagnostics points)

@@ -30,7 +30,7 @@ public static class LackOfFit
             return LackOfFitResult.NotApplicable;
         }
 
-        var sums = new double[c];
+        Span<double> sums = c <= 512 ? stackalloc double[c] : new double[c];
         var counts = groups.Sizes();
         for (var i = 0; i < n; i++)
         {

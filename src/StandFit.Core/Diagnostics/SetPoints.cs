@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.InteropServices;
 
 namespace StandFit.Core.Diagnostics;
 
@@ -50,6 +51,6 @@ public static class SetPoints
             groups[order[k]] = id;
         }
 
-        return new SetPointGrouping([.. groups], stimulus.Length == 0 ? 0 : id + 1, tolerance);
+        return new SetPointGrouping(ImmutableCollectionsMarshal.AsImmutableArray(groups), stimulus.Length == 0 ? 0 : id + 1, tolerance);
     }
 }
