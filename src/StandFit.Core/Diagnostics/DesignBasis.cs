@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -31,6 +32,7 @@ internal sealed class DesignBasis
     public double this[int row, int column] => _q[(column * Rows) + row];
 
     /// <summary>The basis of the fit's design: the model's basis functions at the fit's scaled inputs (whitened rows for a weighted fit).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static DesignBasis Of(IFitResult fit)
     {
         var n = fit.Count;
@@ -78,6 +80,7 @@ internal sealed class DesignBasis
     }
 
     /// <summary>Gram-Schmidt twice on the columns, in place; false when a column is (nearly) dependent on the earlier ones (the columns are then spoilt).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static bool GramSchmidtTwice(double[] columns, int n, int p)
     {
         for (var j = 0; j < p; j++)
@@ -148,6 +151,7 @@ internal sealed class DesignBasis
     }
 
     /// <summary>The residual of <paramref name="v"/> after projection on the design space, in place: v - Q Q' v, twice.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void RemoveProjection(Span<double> v)
     {
         for (var pass = 0; pass < 2; pass++)
@@ -170,6 +174,7 @@ internal sealed class DesignBasis
     }
 
     /// <summary>||Q' v||^2: the squared length of the projection of <paramref name="v"/> on the design space.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public double ProjectedSquaredNorm(ReadOnlySpan<double> v)
     {
         var sum = 0.0;

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -45,6 +46,7 @@ public static class DurbinWatson
     public static DurbinWatsonResult Compute(IFitResult fit, int[]? order) =>
         Compute(fit.WeightedResiduals.AsSpan(), DesignBasis.Of(fit), order);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static DurbinWatsonResult Compute(ReadOnlySpan<double> residuals, DesignBasis design, int[]? order)
     {
         var n = residuals.Length;
@@ -253,6 +255,7 @@ public static class DurbinWatson
     /// G = D Q (rows in order), its Gram matrix G'G, and the directions that survive D: the
     /// eigenvectors of G'G whose eigenvalues are not negligible, mapped back by G.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static int KeptColumns(DesignBasis design, int[]? order, Span<double> kept)
     {
         var n = design.Rows;

@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 
 namespace StandFit.Core.Diagnostics;
@@ -21,6 +22,7 @@ public sealed record ResidualHistogram(ImmutableArray<double> Edges, ImmutableAr
     /// sample); ceiling(range / width) equal bins (at least 1, at most <see cref="MaxBins"/>) from
     /// min to max. A zero IQR gives one bin.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static ResidualHistogram FreedmanDiaconis(ReadOnlySpan<double> values)
     {
         var n = values.Length;

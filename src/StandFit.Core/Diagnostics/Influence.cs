@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 using StandFit.Core.Fitting;
 using StandFit.Core.Uncertainty;
@@ -48,6 +49,7 @@ public static class Influence
     /// <summary>Leverage below 1 by less than this is taken as 1.</summary>
     private const double LeverageOne = 1e-10;
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static PointDiagnostics Points(IFitResult fit)
     {
         var n = fit.Count;

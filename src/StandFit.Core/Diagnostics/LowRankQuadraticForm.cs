@@ -1,4 +1,5 @@
 using System.Numerics;
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 
 namespace StandFit.Core.Diagnostics;
@@ -39,6 +40,7 @@ internal static class LowRankQuadraticForm
     public static double LowerTail(ReadOnlySpan<double> poles, ReadOnlySpan<double> z, int rank, int zeros, double d) =>
         LowerTail(poles, z, rank, zeros, d, vectorised: true);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static double LowerTail(ReadOnlySpan<double> poles, ReadOnlySpan<double> z, int rank, int zeros, double d, bool vectorised)
     {
         var m = poles.Length;
@@ -250,6 +252,7 @@ internal static class LowRankQuadraticForm
     private static int Pair(int a, int b, int rank) => (a * rank) - (a * (a - 1) / 2) + (b - a);
 
     /// <summary>ln |prod x|, a log per 32 factors.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static double LogAbsProduct(ReadOnlySpan<double> x)
     {
         var sum = 0.0;
@@ -273,6 +276,7 @@ internal static class LowRankQuadraticForm
     /// and the zero eigenvalues are the first <paramref name="zeros"/>. <paramref name="x"/> are the
     /// poles less d; <paramref name="g"/> (as long) is scratch for G at each of them, taken once.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static double TurnBound(ReadOnlySpan<double> x, Span<double> g, int rank, int zeros, double d, double a)
     {
         var m = x.Length;
@@ -418,6 +422,7 @@ internal static class LowRankQuadraticForm
     }
 
     /// <summary><see cref="Integrand"/> at every node, four nodes at a time.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Integrands(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int rank, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
     {
         var pairs = rank * (rank + 1) / 2;
@@ -525,6 +530,7 @@ internal static class LowRankQuadraticForm
     /// operations: two of them keep the core busy), the sums in registers. Lane by lane the same
     /// operations in the same order as <see cref="Integrands"/>, so the same values bit for bit.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void IntegrandsRankOne(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
     {
         var zero = Vector256<double>.Zero;
@@ -581,6 +587,7 @@ internal static class LowRankQuadraticForm
     }
 
     /// <summary><see cref="Integrands"/> for rank 2 (a quadratic with an intercept), the sums in registers; the same values bit for bit.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void IntegrandsRankTwo(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
     {
         var zero = Vector256<double>.Zero;

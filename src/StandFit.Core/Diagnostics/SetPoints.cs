@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using System.Runtime.InteropServices;
 
 namespace StandFit.Core.Diagnostics;
@@ -31,6 +32,7 @@ public static class SetPoints
     /// more than <paramref name="tolerance"/> above the previous point (single linkage: a chain of
     /// readings each within the tolerance of the next is one set point).
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static SetPointGrouping Group(ReadOnlySpan<double> stimulus, double tolerance)
     {
         if (!(tolerance >= 0) || double.IsInfinity(tolerance))

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
@@ -13,6 +15,7 @@ internal static class SymmetricEigen
     /// <paramref name="values"/> holds the eigenvalues and column k of <paramref name="vectors"/>
     /// (row-major p x p) the eigenvector of value k.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static void Jacobi(Span<double> a, int p, Span<double> values, Span<double> vectors)
     {
         vectors.Clear();

@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using StandFit.Core.Diagnostics;
 using StandFit.Core.Ingest;
 
@@ -47,6 +48,7 @@ public sealed record FiguresOfMerit(
     /// The figures of a sweep whose points are grouped into set points; <paramref name="residualSd"/>
     /// is the fit's residual SD (for the LLF). Null with fewer than two set points or a zero FSO.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static FiguresOfMerit? Compute(ReadOnlySpan<double> stimulus, ReadOnlySpan<double> output, ReadOnlySpan<Leg> legs, SetPointGrouping groups, double residualSd, NominalLine? nominal)
     {
         var c = groups.Count;
