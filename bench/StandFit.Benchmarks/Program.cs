@@ -10,6 +10,7 @@ using StandFit.Benchmarks;
 // standfit-benchmarks gates [UNITS]      the decision-quality study of the residual gates (docs/diagnostics.md)
 // standfit-benchmarks cputime [OPS]     CPU time per operation (a cross-check on a loaded machine)
 // standfit-benchmarks diagprofile [OPS] CPU time of each part of the residual diagnostics
+// standfit-benchmarks diagstage INBOX RECIPES  the pipeline's diagnostics stage on sweep files, cold then warm by part
 // standfit-benchmarks fixture DIR        the data and resample indices that boot_reference.R reads
 if (args.Length > 0 && args[0] == "coverage")
 {
@@ -33,6 +34,12 @@ if (args.Length > 0 && args[0] == "cputime")
 if (args.Length > 0 && args[0] == "diagprofile")
 {
     Console.Write(DiagnosticsProfile.Run(args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 20000));
+    return 0;
+}
+
+if (args.Length > 2 && args[0] == "diagstage")
+{
+    Console.Write(DiagnosticsStage.Run(args[1], args[2]));
     return 0;
 }
 

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
@@ -22,6 +24,7 @@ public static class AndersonDarling
 {
     public const int MinCount = 8;
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static AndersonDarlingResult Compute(ReadOnlySpan<double> values)
     {
         var n = values.Length;

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
@@ -15,6 +17,7 @@ public sealed record AutocorrelationResult(double Lag1, double LjungBoxQ, double
 public static class Autocorrelation
 {
     /// <summary>The lag-1 autocorrelation of <paramref name="values"/> taken in <paramref name="order"/> (null: index order).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static AutocorrelationResult Lag1(ReadOnlySpan<double> values, int[]? order = null)
     {
         var n = values.Length;

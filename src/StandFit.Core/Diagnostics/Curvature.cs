@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -26,6 +27,7 @@ public static class Curvature
 {
     public static CurvatureResult Compute(FitResult fit) => fit.Model is Polynomial ? Compute(fit, DesignBasis.Of(fit)) : CurvatureResult.NotApplicable;
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static CurvatureResult Compute(FitResult fit, DesignBasis design)
     {
         if (fit.Model is not Polynomial polynomial)

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -31,6 +32,7 @@ internal sealed class DesignBasis
     public double this[int row, int column] => _q[(column * Rows) + row];
 
     /// <summary>The basis of the fit's design: the model's basis functions at the fit's scaled inputs (whitened rows for a weighted fit).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static DesignBasis Of(IFitResult fit)
     {
         var n = fit.Count;
@@ -46,7 +48,22 @@ internal sealed class DesignBasis
             }
         }
 
-        return FromColumns(columns, n, p, fit.HasIntercept);
+        // Gram-Schmidt in place; the design is filled again for the rare Householder fallback, so no copy is kept.
+        if (GramSchmidtTwice(columns, n, p))
+        {
+            return new DesignBasis(columns, n, p, fit.HasIntercept);
+        }
+
+        for (var i = 0; i < n; i++)
+        {
+            fit.FillDesignRow(i, row);
+            for (var j = 0; j < p; j++)
+            {
+                columns[(j * n) + i] = row[j];
+            }
+        }
+
+        return Householder(columns, n, p, fit.HasIntercept);
     }
 
     /// <summary>
@@ -59,6 +76,13 @@ internal sealed class DesignBasis
     public static DesignBasis FromColumns(double[] columns, int n, int p, bool hasConstant)
     {
         var original = columns.ToArray();
+        return GramSchmidtTwice(columns, n, p) ? new DesignBasis(columns, n, p, hasConstant) : Householder(original, n, p, hasConstant);
+    }
+
+    /// <summary>Gram-Schmidt twice on the columns, in place; false when a column is (nearly) dependent on the earlier ones (the columns are then spoilt).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static bool GramSchmidtTwice(double[] columns, int n, int p)
+    {
         for (var j = 0; j < p; j++)
         {
             var column = columns.AsSpan(j * n, n);
@@ -78,12 +102,12 @@ internal sealed class DesignBasis
                 // A column (nearly) dependent on the earlier ones: Householder QR with pivoting instead.
                 if (!Normalise(column, pass == 0 ? 1e-8 : 0.5))
                 {
-                    return Householder(original, n, p, hasConstant);
+                    return false;
                 }
             }
         }
 
-        return new DesignBasis(columns, n, p, hasConstant);
+        return true;
     }
 
     /// <summary>The thin Q of the Householder QR (with column pivoting) of the equilibrated columns.</summary>
@@ -127,6 +151,7 @@ internal sealed class DesignBasis
     }
 
     /// <summary>The residual of <paramref name="v"/> after projection on the design space, in place: v - Q Q' v, twice.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void RemoveProjection(Span<double> v)
     {
         for (var pass = 0; pass < 2; pass++)
@@ -149,6 +174,7 @@ internal sealed class DesignBasis
     }
 
     /// <summary>||Q' v||^2: the squared length of the projection of <paramref name="v"/> on the design space.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public double ProjectedSquaredNorm(ReadOnlySpan<double> v)
     {
         var sum = 0.0;

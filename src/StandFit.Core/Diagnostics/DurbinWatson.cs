@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -45,6 +46,7 @@ public static class DurbinWatson
     public static DurbinWatsonResult Compute(IFitResult fit, int[]? order) =>
         Compute(fit.WeightedResiduals.AsSpan(), DesignBasis.Of(fit), order);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static DurbinWatsonResult Compute(ReadOnlySpan<double> residuals, DesignBasis design, int[]? order)
     {
         var n = residuals.Length;
@@ -75,18 +77,23 @@ public static class DurbinWatson
         var d = numerator / denominator;
 
         // With an intercept, C has exactly p - 1 zero eigenvalues and the integral needs no eigenvalue.
-        var (columns, m) = KeptColumns(design, order);
-        if (design.HasConstant && columns.Count == design.Columns - 1 && columns.Count >= 1)
+        // The columns and their sine transforms live on the stack: no allocation on this path.
+        var m = n - 1;
+        var p = design.Columns;
+        Span<double> kept = m * p <= 4096 ? stackalloc double[m * p] : new double[m * p];
+        var count = KeptColumns(design, order, kept);
+        if (design.HasConstant && count == p - 1 && count >= 1)
         {
-            var (poles, z) = SineTransform(columns, n);
-            var p = LowRankQuadraticForm.LowerTail(poles, z, columns.Count, design.Columns - 1, d);
-            if (!double.IsNaN(p))
+            Span<double> w = m * count <= 4096 ? stackalloc double[m * count] : new double[m * count];
+            var poles = SineTransform(kept[..(m * count)], count, n, w);
+            var lowerTail = LowRankQuadraticForm.LowerTail(poles, w, count, p - 1, d);
+            if (!double.IsNaN(lowerTail))
             {
-                return new DurbinWatsonResult(d, p, DiagnosticMethods.Exact, n - design.Columns);
+                return new DurbinWatsonResult(d, lowerTail, DiagnosticMethods.Exact, n - p);
             }
         }
 
-        var eigenvalues = Floor(SineDowndate(columns, n));
+        var eigenvalues = Floor(SineDowndate(Split(kept, count, m), n));
         if (eigenvalues.Length == 0)
         {
             return DurbinWatsonResult.NotApplicable;
@@ -237,12 +244,24 @@ public static class DurbinWatson
     /// <summary>The columns c of G = D Q (rows in <paramref name="order"/>) whose outer products sum to G G', those D does not annihilate; and m = n - 1.</summary>
     internal static (List<double[]> Columns, int M) KeptColumns(DesignBasis design, int[]? order)
     {
+        var m = design.Rows - 1;
+        var kept = new double[m * design.Columns];
+        return (Split(kept, KeptColumns(design, order, kept), m), m);
+    }
+
+    /// <summary>
+    /// The kept columns of <see cref="KeptColumns(DesignBasis, int[])"/> written to
+    /// <paramref name="kept"/> (column-major, m x p, the first of them used); their number.
+    /// G = D Q (rows in order), its Gram matrix G'G, and the directions that survive D: the
+    /// eigenvectors of G'G whose eigenvalues are not negligible, mapped back by G.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    internal static int KeptColumns(DesignBasis design, int[]? order, Span<double> kept)
+    {
         var n = design.Rows;
         var p = design.Columns;
         var m = n - 1;
-
-        // G = D Q (rows in order), then its Gram matrix G'G and the directions that survive D.
-        var g = new double[m * p]; // column-major
+        Span<double> g = m * p <= 4096 ? stackalloc double[m * p] : new double[m * p]; // column-major
         for (var j = 0; j < p; j++)
         {
             for (var i = 0; i < m; i++)
@@ -253,7 +272,7 @@ public static class DurbinWatson
             }
         }
 
-        var gram = new double[p * p];
+        Span<double> gram = stackalloc double[p * p];
         for (var a = 0; a < p; a++)
         {
             for (var b = a; b < p; b++)
@@ -269,16 +288,22 @@ public static class DurbinWatson
             }
         }
 
-        var values = new double[p];
-        var vectors = new double[p * p];
+        Span<double> values = stackalloc double[p];
+        Span<double> vectors = stackalloc double[p * p];
         SymmetricEigen.Jacobi(gram, p, values, vectors);
-        var largest = values.Max();
-        var kept = new List<double[]>();
+        var largest = double.NegativeInfinity;
+        foreach (var v in values)
+        {
+            largest = Math.Max(largest, v);
+        }
+
+        var count = 0;
         for (var k = 0; k < p; k++)
         {
             if (values[k] > 1e-12 * largest && values[k] > 0)
             {
-                var column = new double[m];
+                var column = kept.Slice(count * m, m);
+                column.Clear();
                 for (var j = 0; j < p; j++)
                 {
                     var weight = vectors[(j * p) + k];
@@ -288,11 +313,23 @@ public static class DurbinWatson
                     }
                 }
 
-                kept.Add(column);
+                count++;
             }
         }
 
-        return (kept, m);
+        return count;
+    }
+
+    /// <summary>The first <paramref name="count"/> columns (of length m) of a column-major block, as arrays.</summary>
+    private static List<double[]> Split(ReadOnlySpan<double> block, int count, int m)
+    {
+        var columns = new List<double[]>(count);
+        for (var k = 0; k < count; k++)
+        {
+            columns.Add(block.Slice(k * m, m).ToArray());
+        }
+
+        return columns;
     }
 
     /// <summary>Eigenvalues of T - sum c c' in T's eigenbasis: diag(lambda) less the sine transforms of the columns.</summary>
@@ -306,14 +343,27 @@ public static class DurbinWatson
     internal static (double[] Lambda, double[] W) SineTransform(List<double[]> columns, int n)
     {
         var m = n - 1;
-        var basis = SineBasis.Of(n);
-        var w = new double[m * columns.Count];
+        var block = new double[m * columns.Count];
         for (var t = 0; t < columns.Count; t++)
         {
-            basis.Transform(columns[t], w.AsSpan(t * m, m));
+            columns[t].CopyTo(block, t * m);
         }
 
-        return (basis.Lambda, w);
+        var w = new double[m * columns.Count];
+        return (SineTransform(block, columns.Count, n, w), w);
+    }
+
+    /// <summary>The <paramref name="count"/> columns of <paramref name="columns"/> (column-major, m = n - 1 rows) in T's eigenbasis, into <paramref name="w"/>; T's eigenvalues.</summary>
+    internal static double[] SineTransform(ReadOnlySpan<double> columns, int count, int n, Span<double> w)
+    {
+        var m = n - 1;
+        var basis = SineBasis.Of(n);
+        for (var t = 0; t < count; t++)
+        {
+            basis.Transform(columns.Slice(t * m, m), w.Slice(t * m, m));
+        }
+
+        return basis.Lambda;
     }
 
     /// <summary>Eigenvalues of T - c c' by forming the matrix.</summary>

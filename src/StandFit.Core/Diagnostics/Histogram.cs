@@ -1,4 +1,6 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 
 namespace StandFit.Core.Diagnostics;
 
@@ -20,6 +22,7 @@ public sealed record ResidualHistogram(ImmutableArray<double> Edges, ImmutableAr
     /// sample); ceiling(range / width) equal bins (at least 1, at most <see cref="MaxBins"/>) from
     /// min to max. A zero IQR gives one bin.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static ResidualHistogram FreedmanDiaconis(ReadOnlySpan<double> values)
     {
         var n = values.Length;
@@ -28,8 +31,9 @@ public sealed record ResidualHistogram(ImmutableArray<double> Edges, ImmutableAr
             return Empty;
         }
 
-        var sorted = values.ToArray();
-        Array.Sort(sorted);
+        Span<double> sorted = n <= 512 ? stackalloc double[n] : new double[n];
+        values.CopyTo(sorted);
+        sorted.Sort();
         var iqr = Quantile7(sorted, 0.75) - Quantile7(sorted, 0.25);
         var width = 2 * iqr * Math.Pow(n, -1.0 / 3.0);
         var lo = sorted[0];
@@ -55,7 +59,7 @@ public sealed record ResidualHistogram(ImmutableArray<double> Edges, ImmutableAr
             counts[bin]++;
         }
 
-        return new ResidualHistogram([.. edges], [.. counts]);
+        return new ResidualHistogram(ImmutableCollectionsMarshal.AsImmutableArray(edges), ImmutableCollectionsMarshal.AsImmutableArray(counts));
     }
 
     /// <summary>R's type-7 quantile of a sorted sample: (1 - h) x_lo + h x_hi at index 1 + (n - 1) p.</summary>

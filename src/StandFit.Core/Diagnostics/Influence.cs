@@ -1,4 +1,6 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 using StandFit.Core.Fitting;
 using StandFit.Core.Uncertainty;
 
@@ -47,6 +49,7 @@ public static class Influence
     /// <summary>Leverage below 1 by less than this is taken as 1.</summary>
     private const double LeverageOne = 1e-10;
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static PointDiagnostics Points(IFitResult fit)
     {
         var n = fit.Count;
@@ -74,7 +77,8 @@ public static class Influence
             cooks[i] = e * e * h / (p * s2 * oneMinusH * oneMinusH);
         }
 
-        return new PointDiagnostics(fit.Leverage, [.. standardized], [.. studentized], [.. cooks]);
+        // The arrays are this result's own: wrapped, not copied.
+        return new PointDiagnostics(fit.Leverage, ImmutableCollectionsMarshal.AsImmutableArray(standardized), ImmutableCollectionsMarshal.AsImmutableArray(studentized), ImmutableCollectionsMarshal.AsImmutableArray(cooks));
     }
 
     public static OutlierTestResult OutlierTest(IFitResult fit, PointDiagnostics points)

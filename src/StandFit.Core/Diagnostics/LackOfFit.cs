@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using StandFit.Core.Fitting;
 
 namespace StandFit.Core.Diagnostics;
@@ -17,6 +18,7 @@ public sealed record LackOfFitResult(double F, int LackDf, int PureErrorDf, doub
 
 public static class LackOfFit
 {
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static LackOfFitResult Compute(IFitResult fit, SetPointGrouping groups)
     {
         var n = fit.Count;
@@ -30,7 +32,7 @@ public static class LackOfFit
             return LackOfFitResult.NotApplicable;
         }
 
-        var sums = new double[c];
+        Span<double> sums = c <= 512 ? stackalloc double[c] : new double[c];
         var counts = groups.Sizes();
         for (var i = 0; i < n; i++)
         {

@@ -1,4 +1,5 @@
 using System.Numerics;
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 
 namespace StandFit.Core.Diagnostics;
@@ -39,6 +40,7 @@ internal static class LowRankQuadraticForm
     public static double LowerTail(ReadOnlySpan<double> poles, ReadOnlySpan<double> z, int rank, int zeros, double d) =>
         LowerTail(poles, z, rank, zeros, d, vectorised: true);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static double LowerTail(ReadOnlySpan<double> poles, ReadOnlySpan<double> z, int rank, int zeros, double d, bool vectorised)
     {
         var m = poles.Length;
@@ -152,12 +154,13 @@ internal static class LowRankQuadraticForm
         Span<double> starts = stackalloc double[64];
         Span<double> widths = stackalloc double[64];
         Span<int> pieces = stackalloc int[64];
+        Span<double> scratch = m <= 512 ? stackalloc double[m] : new double[m];
         var doublings = 0;
         var panels = 0;
         double lo = 0, hi = scale;
         while (lo < upper && panels < QuadraticForm.MaxPanels && doublings < 64)
         {
-            var turn = 0.5 * (hi - lo) * TurnBound(poles, rank, zeros, d, lo);
+            var turn = 0.5 * (hi - lo) * TurnBound(x, scratch, rank, zeros, d, lo);
             var n = Math.Max(1, (int)Math.Ceiling(turn / QuadraticForm.RadiansPerPanel));
             starts[doublings] = lo;
             widths[doublings] = (hi - lo) / n;
@@ -171,7 +174,7 @@ internal static class LowRankQuadraticForm
         var (gaussNodes, gaussWeights) = QuadraticForm.Gauss;
         var order = gaussNodes.Length;
         var total = panels * order;
-        var padded = (total + 3) & ~3;
+        var padded = (total + 7) & ~7;
         var u = padded <= 2048 ? stackalloc double[padded] : new double[padded];
         var f = padded <= 2048 ? stackalloc double[padded] : new double[padded];
         var node = 0;
@@ -205,7 +208,18 @@ internal static class LowRankQuadraticForm
 
         if (vectorised)
         {
-            Integrands(x, zz, rank, zeros, d, u, f);
+            switch (rank)
+            {
+                case 1:
+                    IntegrandsRankOne(x, zz, zeros, d, u, f);
+                    break;
+                case 2:
+                    IntegrandsRankTwo(x, zz, zeros, d, u, f);
+                    break;
+                default:
+                    Integrands(x, zz, rank, zeros, d, u, f);
+                    break;
+            }
         }
         else
         {
@@ -238,6 +252,7 @@ internal static class LowRankQuadraticForm
     private static int Pair(int a, int b, int rank) => (a * rank) - (a * (a - 1) / 2) + (b - a);
 
     /// <summary>ln |prod x|, a log per 32 factors.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static double LogAbsProduct(ReadOnlySpan<double> x)
     {
         var sum = 0.0;
@@ -258,17 +273,38 @@ internal static class LowRankQuadraticForm
     /// <summary>
     /// An upper bound of sum_j |mu_j - d| / (1 + (mu_j - d)^2 a^2) over the non-zero eigenvalues:
     /// eigenvalue j (ascending, from 1) lies in [lambda_(j-r), lambda_j] (lambda_i = 0 for i &lt;= 0),
-    /// and the zero eigenvalues are the first <paramref name="zeros"/>.
+    /// and the zero eigenvalues are the first <paramref name="zeros"/>. <paramref name="x"/> are the
+    /// poles less d; <paramref name="g"/> (as long) is scratch for G at each of them, taken once.
     /// </summary>
-    private static double TurnBound(ReadOnlySpan<double> poles, int rank, int zeros, double d, double a)
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static double TurnBound(ReadOnlySpan<double> x, Span<double> g, int rank, int zeros, double d, double a)
     {
+        var m = x.Length;
+        var k = 0;
+        if (Vector256.IsHardwareAccelerated)
+        {
+            var one = Vector256.Create(1.0);
+            var va = Vector256.Create(a);
+            for (; k + 4 <= m; k += 4)
+            {
+                var v = Vector256.Create(x.Slice(k, 4));
+                (Vector256.Abs(v) / (one + (v * v * va * va))).CopyTo(g.Slice(k, 4));
+            }
+        }
+
+        for (; k < m; k++)
+        {
+            g[k] = G(x[k], a);
+        }
+
+        var atZero = G(-d, a);
         var sum = 0.0;
         var peak = a > 0 ? 1.0 / a : double.PositiveInfinity;
-        for (var j = zeros + 1; j <= poles.Length; j++)
+        for (var j = zeros + 1; j <= m; j++)
         {
-            var lo = (j - rank >= 1 ? poles[j - rank - 1] : 0.0) - d;
-            var hi = poles[j - 1] - d;
-            var best = Math.Max(G(lo, a), G(hi, a));
+            var lo = (j - rank >= 1 ? x[j - rank - 1] : -d);
+            var hi = x[j - 1];
+            var best = Math.Max(j - rank >= 1 ? g[j - rank - 1] : atZero, g[j - 1]);
             if ((peak >= lo && peak <= hi) || (-peak >= lo && -peak <= hi))
             {
                 best = Math.Max(best, 0.5 * peak);
@@ -386,6 +422,7 @@ internal static class LowRankQuadraticForm
     }
 
     /// <summary><see cref="Integrand"/> at every node, four nodes at a time.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Integrands(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int rank, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
     {
         var pairs = rank * (rank + 1) / 2;
@@ -485,6 +522,153 @@ internal static class LowRankQuadraticForm
 
             (hi / (u * Vector256.Sqrt(modulus))).CopyTo(values.Slice(i, 4));
         }
+    }
+
+    /// <summary>
+    /// <see cref="Integrands"/> for rank 1 (a straight line with an intercept), eight nodes at a time
+    /// in two independent chains of four (the product's recurrence is a chain of dependent
+    /// operations: two of them keep the core busy), the sums in registers. Lane by lane the same
+    /// operations in the same order as <see cref="Integrands"/>, so the same values bit for bit.
+    /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void IntegrandsRankOne(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
+    {
+        var zero = Vector256<double>.Zero;
+        var one = Vector256.Create(1.0);
+        var two = Vector256.Create(2.0);
+        var signBit = Vector256.Create(-0.0);
+        for (var i = 0; i < nodes.Length; i += 8)
+        {
+            var u0 = Vector256.Create(nodes.Slice(i, 4));
+            var u1 = Vector256.Create(nodes.Slice(i + 4, 4));
+            Vector256<double> re0 = one, im0 = zero, upper0 = zero, parity0 = zero, sumA0 = zero, sumB0 = zero;
+            Vector256<double> re1 = one, im1 = zero, upper1 = zero, parity1 = zero, sumA1 = zero, sumB1 = zero;
+            for (var k = 0; k < x.Length; k++)
+            {
+                var xk = Vector256.Create(x[k]);
+                var c = Vector256.Create(zz[k]);
+                var t0 = xk * u0;
+                var t1 = xk * u1;
+                var nre0 = re0 - (t0 * im0);
+                var nre1 = re1 - (t1 * im1);
+                var nim0 = im0 + (t0 * re0);
+                var nim1 = im1 + (t1 * re1);
+                var isUpper0 = Vector256.GreaterThan(nim0, zero) | (Vector256.Equals(nim0, zero) & Vector256.LessThan(nre0, zero));
+                var isUpper1 = Vector256.GreaterThan(nim1, zero) | (Vector256.Equals(nim1, zero) & Vector256.LessThan(nre1, zero));
+                parity0 ^= Vector256.LessThan(nre0, zero) & (upper0 ^ isUpper0);
+                parity1 ^= Vector256.LessThan(nre1, zero) & (upper1 ^ isUpper1);
+                upper0 = isUpper0;
+                upper1 = isUpper1;
+                re0 = nre0;
+                re1 = nre1;
+                im0 = nim0;
+                im1 = nim1;
+                var inverse0 = one / (one + (t0 * t0));
+                var inverse1 = one / (one + (t1 * t1));
+                sumA0 += c * inverse0;
+                sumA1 += c * inverse1;
+                sumB0 += c * (t0 * inverse0);
+                sumB1 += c * (t1 * inverse1);
+            }
+
+            Finish(re0, im0, parity0, one - (u0 * sumB0), zero - (u0 * sumA0), u0).CopyTo(values.Slice(i, 4));
+            Finish(re1, im1, parity1, one - (u1 * sumB1), zero - (u1 * sumA1), u1).CopyTo(values.Slice(i + 4, 4));
+        }
+
+        Vector256<double> Finish(Vector256<double> re, Vector256<double> im, Vector256<double> parity, Vector256<double> pr, Vector256<double> pi, Vector256<double> u)
+        {
+            var modulus = Vector256.Sqrt((re * re) + (im * im));
+            var (hr, hi) = HalfAngle(re, im, modulus, two, zero);
+            hr ^= parity & signBit;
+            hi ^= parity & signBit;
+            Pivot(ref hr, ref hi, ref modulus, pr, pi, two, zero);
+            return ZeroFactors(hr, hi, modulus, u, zeros, d, one, two);
+        }
+    }
+
+    /// <summary><see cref="Integrands"/> for rank 2 (a quadratic with an intercept), the sums in registers; the same values bit for bit.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    private static void IntegrandsRankTwo(ReadOnlySpan<double> x, ReadOnlySpan<double> zz, int zeros, double d, ReadOnlySpan<double> nodes, Span<double> values)
+    {
+        var zero = Vector256<double>.Zero;
+        var one = Vector256.Create(1.0);
+        var two = Vector256.Create(2.0);
+        var signBit = Vector256.Create(-0.0);
+        for (var i = 0; i < nodes.Length; i += 4)
+        {
+            var u = Vector256.Create(nodes.Slice(i, 4));
+            Vector256<double> re = one, im = zero, upper = zero, parity = zero;
+            Vector256<double> a00 = zero, a01 = zero, a11 = zero, b00 = zero, b01 = zero, b11 = zero;
+            for (var k = 0; k < x.Length; k++)
+            {
+                var t = Vector256.Create(x[k]) * u;
+                var nre = re - (t * im);
+                var nim = im + (t * re);
+                var isUpper = Vector256.GreaterThan(nim, zero) | (Vector256.Equals(nim, zero) & Vector256.LessThan(nre, zero));
+                parity ^= Vector256.LessThan(nre, zero) & (upper ^ isUpper);
+                upper = isUpper;
+                re = nre;
+                im = nim;
+                var inverse = one / (one + (t * t));
+                var ti = t * inverse;
+                var c00 = Vector256.Create(zz[3 * k]);
+                var c01 = Vector256.Create(zz[(3 * k) + 1]);
+                var c11 = Vector256.Create(zz[(3 * k) + 2]);
+                a00 += c00 * inverse;
+                b00 += c00 * ti;
+                a01 += c01 * inverse;
+                b01 += c01 * ti;
+                a11 += c11 * inverse;
+                b11 += c11 * ti;
+            }
+
+            // W = I - u B - i u A (2 x 2): its two LDL' pivots, as Integrands takes them.
+            var w00r = one - (u * b00);
+            var w00i = zero - (u * a00);
+            var w01r = zero - (u * b01);
+            var w01i = zero - (u * a01);
+            var w11r = one - (u * b11);
+            var w11i = zero - (u * a11);
+            var denominator = (w00r * w00r) + (w00i * w00i);
+            var fr = ((w01r * w00r) + (w01i * w00i)) / denominator;
+            var fi = ((w01i * w00r) - (w01r * w00i)) / denominator;
+            w11r -= (fr * w01r) - (fi * w01i);
+            w11i -= (fr * w01i) + (fi * w01r);
+
+            var modulus = Vector256.Sqrt((re * re) + (im * im));
+            var (hr, hi) = HalfAngle(re, im, modulus, two, zero);
+            hr ^= parity & signBit;
+            hi ^= parity & signBit;
+            Pivot(ref hr, ref hi, ref modulus, w00r, w00i, two, zero);
+            Pivot(ref hr, ref hi, ref modulus, w11r, w11i, two, zero);
+            ZeroFactors(hr, hi, modulus, u, zeros, d, one, two).CopyTo(values.Slice(i, 4));
+        }
+    }
+
+    /// <summary>One LDL' pivot's half angle (its argument clamped into (-pi, 0]) and modulus multiplied in.</summary>
+    private static void Pivot(ref Vector256<double> hr, ref Vector256<double> hi, ref Vector256<double> modulus, Vector256<double> pr, Vector256<double> pi, Vector256<double> two, Vector256<double> zero)
+    {
+        pi = Vector256.Min(pi, zero);
+        var pm = Vector256.Sqrt((pr * pr) + (pi * pi));
+        var (lr, li) = LowerHalfAngle(pr, pi, pm, two, zero);
+        (hr, hi) = ((hr * lr) - (hi * li), (hr * li) + (hi * lr));
+        modulus *= pm;
+    }
+
+    /// <summary>The zero eigenvalues' factors taken out of the half angle and the modulus; the integrand sin(theta) / (u rho).</summary>
+    private static Vector256<double> ZeroFactors(Vector256<double> hr, Vector256<double> hi, Vector256<double> modulus, Vector256<double> u, int zeros, double d, Vector256<double> one, Vector256<double> two)
+    {
+        var ud = u * Vector256.Create(d);
+        var cz = Vector256.Sqrt(one + (ud * ud));
+        var cos0 = Vector256.Sqrt((cz + one) / (two * cz));
+        var sin0 = ud / (two * cz * cos0);
+        for (var j = 0; j < zeros; j++)
+        {
+            (hr, hi) = ((hr * cos0) - (hi * sin0), (hr * sin0) + (hi * cos0));
+            modulus /= cz;
+        }
+
+        return hi / (u * Vector256.Sqrt(modulus));
     }
 
     private static (Vector256<double> Cos, Vector256<double> Sin) HalfAngle(Vector256<double> re, Vector256<double> im, Vector256<double> modulus, Vector256<double> two, Vector256<double> zero)

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
@@ -9,6 +11,7 @@ public sealed record MomentsResult(double Skewness, double ExcessKurtosis)
 {
     public bool IsApplicable => double.IsFinite(Skewness);
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static MomentsResult Of(ReadOnlySpan<double> values)
     {
         var n = values.Length;

@@ -1,3 +1,4 @@
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 
 namespace StandFit.Core.Diagnostics;
@@ -29,6 +30,7 @@ internal static class QuadraticForm
     public static double ProbabilityBelowZero(ReadOnlySpan<double> lambda) => ProbabilityBelowZero(lambda, vectorised: true);
 
     /// <summary>As <see cref="ProbabilityBelowZero(ReadOnlySpan{double})"/>; <paramref name="vectorised"/> evaluates four nodes at a time (the same value, bit for bit).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     internal static double ProbabilityBelowZero(ReadOnlySpan<double> lambda, bool vectorised)
     {
         var m = 0;
@@ -170,6 +172,7 @@ internal static class QuadraticForm
     /// order on each lane, so the same value bit for bit (no fused multiply-add). No rescaling: the
     /// caller has checked that the product cannot overflow.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void Integrands(ReadOnlySpan<double> lambda, ReadOnlySpan<double> nodes, Span<double> values)
     {
         var zero = Vector256<double>.Zero;

@@ -1,4 +1,6 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
+using System.Runtime.InteropServices;
 
 namespace StandFit.Core.Diagnostics;
 
@@ -30,6 +32,7 @@ public static class SetPoints
     /// more than <paramref name="tolerance"/> above the previous point (single linkage: a chain of
     /// readings each within the tolerance of the next is one set point).
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static SetPointGrouping Group(ReadOnlySpan<double> stimulus, double tolerance)
     {
         if (!(tolerance >= 0) || double.IsInfinity(tolerance))
@@ -50,6 +53,6 @@ public static class SetPoints
             groups[order[k]] = id;
         }
 
-        return new SetPointGrouping([.. groups], stimulus.Length == 0 ? 0 : id + 1, tolerance);
+        return new SetPointGrouping(ImmutableCollectionsMarshal.AsImmutableArray(groups), stimulus.Length == 0 ? 0 : id + 1, tolerance);
     }
 }

@@ -1,4 +1,5 @@
 using System.Collections.Concurrent;
+using System.Runtime.CompilerServices;
 
 namespace StandFit.Core.Diagnostics;
 
@@ -37,6 +38,7 @@ public static class ShapiroWilk
 
     private static readonly ConcurrentDictionary<int, double[]> Coefficients = new();
 
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static ShapiroWilkResult Compute(ReadOnlySpan<double> values)
     {
         var n = values.Length;

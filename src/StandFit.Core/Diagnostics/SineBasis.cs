@@ -1,4 +1,5 @@
 using System.Collections.Concurrent;
+using System.Runtime.CompilerServices;
 using System.Runtime.Intrinsics;
 
 namespace StandFit.Core.Diagnostics;
@@ -58,6 +59,7 @@ internal sealed class SineBasis
     public static SineBasis Of(int n) => Cache.GetOrAdd(n, static size => new SineBasis(size));
 
     /// <summary>w_j = phi_j' c for j = 1 .. m.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public void Transform(ReadOnlySpan<double> c, Span<double> w)
     {
         var m = _n - 1;

@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Diagnostics;
 
 /// <summary>
@@ -13,9 +15,10 @@ internal static class SymmetricEigen
     /// <paramref name="values"/> holds the eigenvalues and column k of <paramref name="vectors"/>
     /// (row-major p x p) the eigenvector of value k.
     /// </summary>
-    public static void Jacobi(double[] a, int p, double[] values, double[] vectors)
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
+    public static void Jacobi(Span<double> a, int p, Span<double> values, Span<double> vectors)
     {
-        Array.Clear(vectors);
+        vectors.Clear();
         for (var i = 0; i < p; i++)
         {
             vectors[(i * p) + i] = 1.0;

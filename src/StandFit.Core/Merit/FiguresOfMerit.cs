@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 using StandFit.Core.Diagnostics;
 using StandFit.Core.Ingest;
 
@@ -47,6 +48,7 @@ public sealed record FiguresOfMerit(
     /// The figures of a sweep whose points are grouped into set points; <paramref name="residualSd"/>
     /// is the fit's residual SD (for the LLF). Null with fewer than two set points or a zero FSO.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static FiguresOfMerit? Compute(ReadOnlySpan<double> stimulus, ReadOnlySpan<double> output, ReadOnlySpan<Leg> legs, SetPointGrouping groups, double residualSd, NominalLine? nominal)
     {
         var c = groups.Count;
@@ -56,13 +58,19 @@ public sealed record FiguresOfMerit(
         }
 
         // Per set point and direction (up, down, no leg): sums, counts, and the spread of the readings.
-        var sumX = new double[c * 3];
-        var sumY = new double[c * 3];
-        var count = new int[c * 3];
-        var min = new double[c * 3];
-        var max = new double[c * 3];
-        Array.Fill(min, double.PositiveInfinity);
-        Array.Fill(max, double.NegativeInfinity);
+        // Scratch per set point and direction on the stack (a few hundred set points at most in practice).
+        var cells = c * 3;
+        var small = cells <= 768;
+        Span<double> sumX = small ? stackalloc double[cells] : new double[cells];
+        Span<double> sumY = small ? stackalloc double[cells] : new double[cells];
+        Span<int> count = small ? stackalloc int[cells] : new int[cells];
+        Span<double> min = small ? stackalloc double[cells] : new double[cells];
+        Span<double> max = small ? stackalloc double[cells] : new double[cells];
+        sumX.Clear();
+        sumY.Clear();
+        count.Clear();
+        min.Fill(double.PositiveInfinity);
+        max.Fill(double.NegativeInfinity);
         for (var i = 0; i < stimulus.Length; i++)
         {
             var d = legs[i] switch { Leg.Up => 0, Leg.Down => 1, _ => 2 };

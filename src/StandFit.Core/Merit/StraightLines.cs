@@ -1,3 +1,5 @@
+using System.Runtime.CompilerServices;
+
 namespace StandFit.Core.Merit;
 
 /// <summary>y = Intercept + Slope x.</summary>
@@ -67,6 +69,7 @@ public static class StraightLines
     /// convex), and the line runs down the middle of the band: deviation W/2, reached with alternating
     /// signs at three points (Chebyshev's alternation). <paramref name="x"/> must increase strictly.
     /// </summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     public static Line Minimax(ReadOnlySpan<double> x, ReadOnlySpan<double> y)
     {
         var n = x.Length;
@@ -130,6 +133,7 @@ public static class StraightLines
     }
 
     /// <summary>The edge slopes of the upper (or lower) convex hull of points sorted by x (Andrew's monotone chain).</summary>
+    [MethodImpl(MethodImplOptions.AggressiveOptimization)]
     private static void HullSlopes(ReadOnlySpan<double> x, ReadOnlySpan<double> y, bool upper, List<double> slopes)
     {
         var sign = upper ? 1.0 : -1.0;
