@@ -14,8 +14,10 @@
 #                           in stimulus and acquisition order and in each leg: twice the smaller of
 #                           P(R < r) + P(R = r)/2 and P(R > r) + P(R = r)/2 under the closed-form
 #                           distribution of the number of runs (Swed and Eisenhart 1943), summed
-#                           with choose(); tseries::runs.test's normal p where a sign count is
-#                           above 30 (StandFit's exact limit)
+#                           with choose(); where a sign count is above 30 (StandFit's exact
+#                           limit) the normal p 2 pnorm(-|z|) with the Wald-Wolfowitz mean and
+#                           variance, as tseries::runs.test computes it (checked against tseries
+#                           itself by make-orders-fixture.R)
 #   runs within legs        the stratified test: T = the legs' run counts summed, its distribution
 #                           the convolution (stats::convolve, type "open") of the legs' exact
 #                           distributions; exact two-sided p (twice the smaller tail, at most 1) and
@@ -24,7 +26,6 @@
 
 suppressPackageStartupMessages({
   library(lmtest)
-  library(tseries)
 })
 
 here <- "tests/StandFit.Tests/Fixtures/diagnostics"
@@ -97,8 +98,10 @@ runs_mid <- function(e, ord) {
     ps <- two_sided(runs_distribution(n1, n2), r)
     list(count = r, n1 = n1, n2 = n2, p = ps[["p"]], mid = ps[["mid"]], exact = TRUE)
   } else {
-    normal <- runs.test(factor(s, levels = c(-1, 1)))
-    list(count = r, n1 = n1, n2 = n2, p = normal$p.value, mid = normal$p.value, exact = FALSE)
+    n <- n1 + n2
+    z <- (r - (2 * n1 * n2 / n + 1)) / sqrt(2 * n1 * n2 * (2 * n1 * n2 - n) / (n^2 * (n - 1)))
+    p <- 2 * pnorm(-abs(z))
+    list(count = r, n1 = n1, n2 = n2, p = p, mid = p, exact = FALSE)
   }
 }
 
@@ -167,8 +170,8 @@ for (i in seq_len(nrow(datasets))) {
   }
 }
 
-versions <- sprintf("# %s; lmtest %s, tseries %s; written by make-gate-pvalues-fixture.R",
-                    R.version.string, packageVersion("lmtest"), packageVersion("tseries"))
+versions <- sprintf("# %s; lmtest %s; written by make-gate-pvalues-fixture.R",
+                    R.version.string, packageVersion("lmtest"))
 con <- file(file.path(here, "gate-pvalues-fixture.csv"), "w")
 writeLines(versions, con)
 write.csv(do.call(rbind, rows), con, row.names = FALSE, quote = FALSE, na = "")
