@@ -15,16 +15,17 @@ namespace StandFit.Benchmarks;
 /// KP-250-like units, a 21-point up/down sweep (0-250 kPa in 25 kPa steps up, back down to 0; gain
 /// 0.2 mV/kPa, offset 0.01 mV, noise SD 0.005 mV, the reference gauge's reading scattered by 0.002
 /// kPa), fitted by a straight line. Each unit's noise comes from its own seeded stream (xoshiro256**,
-/// StreamSeed.Derive(20261202, "GATES-u", "noise")); every defect is added to the same noise draw
+/// StreamSeed.Derive(seed, "GATES-u", "noise"), seed 20261202 unless given); every defect is added to the same noise draw
 /// (common random numbers), so the rates of different defects and sizes are compared on one set of
-/// units. For each gate the p-value is that of the real diagnostics code, and the combined rulings
+/// units. For each gate the p-value is the one the gate judges (the runs gates' mid-p, the
+/// heteroscedasticity gate's F form), from the real diagnostics code, and the combined rulings
 /// are those of the real gate objects (<see cref="RunsGate.Judge(RunsTestResult, ResidualDiagnostics)"/>,
 /// <see cref="DiagnosticGate.Judge"/>). Prints Markdown tables; single-threaded; the same figures on
 /// every run.
 /// </summary>
 internal static class GateStudy
 {
-    public const ulong Seed = 20261202;
+    public const ulong DefaultSeed = 20261202;
     private const int SetPoints = 11;
     private static readonly double[] Levels = [0.05, 0.01, 0.005, 0.001];
 
@@ -33,6 +34,12 @@ internal static class GateStudy
         "runs, stimulus", "runs, acquisition", "runs, per-leg",
         "Durbin-Watson, acquisition", "Durbin-Watson, stimulus", "Durbin-Watson, per-leg",
         "lack of fit", "curvature", "Shapiro-Wilk", "Anderson-Darling", "Breusch-Pagan", "outliers",
+    ];
+
+    /// <summary>The p-values kept in the summary as R computes them, after the gates' own in each unit's row.</summary>
+    private static readonly string[] ReferenceNames =
+    [
+        "runs, stimulus: exact p (`runs_p`)", "runs, acquisition: exact p (`runs_acquisition_p`)", "runs, per-leg: Šidák of the legs' exact p (`runs_per_leg_p`)", "Breusch-Pagan: chi-square p (`bp_p`)",
     ];
 
     /// <summary>A defect added to a well-behaved unit, in noise SDs.</summary>
@@ -68,10 +75,16 @@ internal static class GateStudy
         }),
     ];
 
-    public static string Run(int units)
+    /// <summary>The seed of the current run (every unit's streams derive from it).</summary>
+    private static ulong Seed { get; set; } = DefaultSeed;
+
+    public static string Run(int units, ulong seed)
     {
+        Seed = seed;
         var text = new StringBuilder();
         var started = DateTime.UtcNow;
+        var process = System.Diagnostics.Process.GetCurrentProcess();
+        var cpuStarted = process.TotalProcessorTime;
         var nullP = PValues(units, null, 0);
         var recommended = Combined(units, null, 0);
 
@@ -103,7 +116,7 @@ internal static class GateStudy
             text.Append(CultureInfo.InvariantCulture, $" {100.0 * nullP.Count(p => double.IsNaN(p[g])) / units:F1} |\n");
         }
 
-        text.Append("\nThe runs test is discrete: given the sign counts only a few p-values can occur, so P(p < level) under the null, its attained size, lies below the level (the smallest two-sided p of an 11-point leg is 4/462 = 0.0087, of a 10-point leg 4/252 = 0.016). The runs gates set against the attained size of the exact runs distribution, averaged over the units' own sign counts (per-leg: the Šidák threshold 1 - (1 - level)^(1/k) on each leg, legs independent):\n\n| gate |");
+        text.Append("\nThe runs gates judge the two-sided mid-p (Lancaster 1961), the per-leg gate that of the stratified test within legs (the legs' run counts summed, their exact distributions convolved); the mid-p of a discrete test is not bounded by its level, so beside each rate is the attained size P(mid-p < level) of the exact runs distribution for the unit's own sign counts, averaged over the units (what the rate would be if the residual signs were in random order):\n\n| gate |");
         foreach (var a in Levels)
         {
             text.Append(CultureInfo.InvariantCulture, $" p < {a}: rate / attained |");
@@ -125,6 +138,19 @@ internal static class GateStudy
                 var rate = Rate(nullP, g, Levels[l]);
                 var off = Math.Abs(rate - sizes[g, l]) > 0.005;
                 text.Append(CultureInfo.InvariantCulture, $" {100 * rate:F2} / {100 * sizes[g, l]:F2}{(off ? " *" : "")} |");
+            }
+
+            text.Append('\n');
+        }
+
+        text.Append("\nThe p-values the summary keeps beside them, as R computes them, which the gates no longer judge (per cent of units below the level):\n\n| p-value | p < 0.05 | p < 0.01 | p < 0.005 | p < 0.001 |\n|---|---|---|---|---|\n");
+        for (var g = 0; g < ReferenceNames.Length; g++)
+        {
+            text.Append("| ").Append(ReferenceNames[g]).Append(" |");
+            foreach (var a in Levels)
+            {
+                var rate = Rate(nullP, GateNames.Length + g, a);
+                text.Append(CultureInfo.InvariantCulture, $" {100 * rate:F2}{(Math.Abs(rate - a) > 0.005 ? " *" : "")} |");
             }
 
             text.Append('\n');
@@ -184,14 +210,15 @@ internal static class GateStudy
             text.Append('\n');
         }
 
-        text.Append(CultureInfo.InvariantCulture, $"\n({(DateTime.UtcNow - started).TotalSeconds:F0} s)\n");
+        text.Append(CultureInfo.InvariantCulture, $"\n({(DateTime.UtcNow - started).TotalSeconds:F0} s wall, {(process.TotalProcessorTime - cpuStarted).TotalSeconds:F0} s CPU)\n");
         return text.ToString();
     }
 
     /// <summary>
     /// The attained size of the three runs gates at each level, averaged over the well-behaved units:
-    /// for a unit's sign counts (n1, n2), the sum of P(R = r) over the run counts r whose exact
-    /// two-sided p is below the level (the normal approximation's size is the level itself).
+    /// for a unit's sign counts, the sum of P(R = r) over the run counts r whose mid-p is below the
+    /// level (per-leg: over the pairs of leg run counts whose stratified mid-p is; the normal
+    /// approximation's size is the level itself).
     /// </summary>
     private static double[,] AttainedSizes(int units)
     {
@@ -201,19 +228,12 @@ internal static class GateStudy
             var (fit, sweep) = Unit(u, null, 0);
             var d = ResidualDiagnostics.Compute(fit, sweep.Legs.AsSpan(), Options(ResidualOrder.Acquisition));
             var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
+            var legs = d.RunsPerLeg.Results.Where(r => r.IsApplicable).ToArray();
             for (var l = 0; l < Levels.Length; l++)
             {
                 sums[0, l] += Size(runs, Levels[l]);
                 sums[1, l] += Size(d.RunsByAcquisition, Levels[l]);
-                var legs = d.RunsPerLeg.Results.Where(r => r.IsApplicable).ToArray();
-                var threshold = 1 - Math.Pow(1 - Levels[l], 1.0 / legs.Length);
-                var none = 1.0;
-                foreach (var leg in legs)
-                {
-                    none *= 1 - Size(leg, threshold);
-                }
-
-                sums[2, l] += 1 - none;
+                sums[2, l] += StratifiedSize(legs, Levels[l]);
             }
         }
 
@@ -243,12 +263,51 @@ internal static class GateStudy
         var size = 0.0;
         for (var r = 2; r <= runs.Positive + runs.Negative; r++)
         {
-            if (RunsTest.FromCounts(r, runs.Positive, runs.Negative).P < level)
+            if (RunsTest.FromCounts(r, runs.Positive, runs.Negative).MidP < level)
             {
                 size += RunsTest.Probability(r, runs.Positive, runs.Negative);
             }
         }
 
+        return size;
+    }
+
+    /// <summary>The stratified test's attained size: every combination of the legs' run counts, by its probability (legs independent).</summary>
+    private static double StratifiedSize(RunsTestResult[] legs, double level)
+    {
+        if (legs.Length == 0)
+        {
+            return 0;
+        }
+
+        if (legs.Any(l => l.Method != RunsMethod.Exact))
+        {
+            return level;
+        }
+
+        var size = 0.0;
+        var chosen = new RunsTestResult[legs.Length];
+        void Visit(int leg, double probability)
+        {
+            if (leg == legs.Length)
+            {
+                size += RunsTest.Stratified(chosen).MidP < level ? probability : 0;
+                return;
+            }
+
+            var (n1, n2) = (legs[leg].Positive, legs[leg].Negative);
+            for (var r = 2; r <= n1 + n2; r++)
+            {
+                var pr = RunsTest.Probability(r, n1, n2);
+                if (pr > 0)
+                {
+                    chosen[leg] = RunsTest.FromCounts(r, n1, n2);
+                    Visit(leg + 1, probability * pr);
+                }
+            }
+        }
+
+        Visit(0, 1.0);
         return size;
     }
 
@@ -297,15 +356,15 @@ internal static class GateStudy
         {
             var (fit, sweep) = Unit(u, defect, size);
             var legs = sweep.Legs.AsSpan();
-            var d = ResidualDiagnostics.Compute(fit, legs, Options(ResidualOrder.PerLeg));
-            var byStimulusDw = ResidualDiagnostics.Compute(fit, legs, Options(ResidualOrder.Stimulus)).DurbinWatsonIn(ResidualOrder.Stimulus);
+            var d = ResidualDiagnostics.Compute(fit, legs, Options(ResidualOrder.PerLeg) with { AlsoDurbinWatson = [ResidualOrder.Stimulus] });
+            var byStimulusDw = d.DurbinWatsonIn(ResidualOrder.Stimulus);
             var runs = RunsTest.Compute(fit.Residuals.AsSpan(), ResidualOrders.ByStimulus(sweep.Stimulus.AsSpan()));
             static double P(bool applicable, double p) => applicable ? p : double.NaN;
             result[u] =
             [
-                P(runs.IsApplicable, runs.P),
-                P(d.RunsByAcquisition.IsApplicable, d.RunsByAcquisition.P),
-                P(d.RunsPerLeg.IsApplicable, d.RunsPerLeg.P),
+                P(runs.IsApplicable, runs.MidP),
+                P(d.RunsByAcquisition.IsApplicable, d.RunsByAcquisition.MidP),
+                P(d.RunsPerLeg.IsApplicable, d.RunsPerLeg.WithinLegs.MidP),
                 P(d.DurbinWatson.IsApplicable, d.DurbinWatson.P),
                 P(byStimulusDw.IsApplicable, byStimulusDw.P),
                 P(d.DurbinWatsonPerLeg!.IsApplicable, d.DurbinWatsonPerLeg.P),
@@ -313,8 +372,14 @@ internal static class GateStudy
                 P(d.Curvature.IsApplicable, d.Curvature.P),
                 P(d.ShapiroWilk.IsApplicable, d.ShapiroWilk.P),
                 P(d.AndersonDarling.IsApplicable, d.AndersonDarling.P),
-                P(d.BreuschPagan.IsApplicable, d.BreuschPagan.P),
+                P(d.BreuschPagan.IsApplicable, d.BreuschPagan.FP),
                 P(d.Outliers.IsApplicable, d.Outliers.P),
+
+                // The R-matching p-values the gates no longer judge (ReferenceNames).
+                P(runs.IsApplicable, runs.P),
+                P(d.RunsByAcquisition.IsApplicable, d.RunsByAcquisition.P),
+                P(d.RunsPerLeg.IsApplicable, d.RunsPerLeg.P),
+                P(d.BreuschPagan.IsApplicable, d.BreuschPagan.P),
             ];
         }
 

@@ -7,7 +7,7 @@ using StandFit.Benchmarks;
 
 // standfit-benchmarks                    the BenchmarkDotNet suite (one core, in process)
 // standfit-benchmarks coverage [UNITS]   the coverage study of docs/uncertainty.md
-// standfit-benchmarks gates [UNITS]      the decision-quality study of the residual gates (docs/diagnostics.md)
+// standfit-benchmarks gates [UNITS] [SEED] the decision-quality study of the residual gates (docs/diagnostics.md; seed 20261202 unless given)
 // standfit-benchmarks cputime [OPS]     CPU time per operation (a cross-check on a loaded machine)
 // standfit-benchmarks diagprofile [OPS] CPU time of each part of the residual diagnostics
 // standfit-benchmarks diagstage INBOX RECIPES  the pipeline's diagnostics stage on sweep files, cold then warm by part
@@ -21,7 +21,9 @@ if (args.Length > 0 && args[0] == "coverage")
 
 if (args.Length > 0 && args[0] == "gates")
 {
-    Console.Write(GateStudy.Run(args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 10000));
+    Console.Write(GateStudy.Run(
+        args.Length > 1 ? int.Parse(args[1], System.Globalization.CultureInfo.InvariantCulture) : 10000,
+        args.Length > 2 ? ulong.Parse(args[2], System.Globalization.CultureInfo.InvariantCulture) : GateStudy.DefaultSeed));
     return 0;
 }
 

@@ -20,6 +20,13 @@ public sealed record DiagnosticsOptions
     /// test is always computed, another order's beside it when asked for here.
     /// </summary>
     public ResidualOrder DurbinWatsonOrder { get; init; } = ResidualOrder.Acquisition;
+
+    /// <summary>Orders whose Durbin-Watson test is computed besides that of <see cref="DurbinWatsonOrder"/> (a recipe limit on <c>dw_stimulus</c> or <c>dw_per_leg</c> asks for it).</summary>
+    public System.Collections.Immutable.ImmutableArray<ResidualOrder> AlsoDurbinWatson { get; init; } = [];
+
+    /// <summary>True when the Durbin-Watson test in <paramref name="order"/> is computed (acquisition always).</summary>
+    public bool ComputesDurbinWatson(ResidualOrder order) =>
+        order == ResidualOrder.Acquisition || order == DurbinWatsonOrder || AlsoDurbinWatson.Contains(order);
 }
 
 /// <summary>
@@ -45,13 +52,13 @@ public sealed record ResidualDiagnostics(
     ResidualHistogram Histogram,
     FiguresOfMerit? Merit)
 {
-    /// <summary>The runs test on each leg in acquisition order, and the legs combined (Šidák).</summary>
+    /// <summary>The runs test on each leg in acquisition order, and the legs combined (Šidák, and the stratified test the per-leg gate judges).</summary>
     public PerLegRunsResult RunsPerLeg { get; init; } = PerLegRunsResult.NotApplicable;
 
-    /// <summary>Durbin-Watson on the residuals in stimulus order; computed only when <see cref="DiagnosticsOptions.DurbinWatsonOrder"/> asks for it.</summary>
+    /// <summary>Durbin-Watson on the residuals in stimulus order; computed only when <see cref="DiagnosticsOptions.ComputesDurbinWatson"/> says so.</summary>
     public DurbinWatsonResult? DurbinWatsonByStimulus { get; init; }
 
-    /// <summary>Durbin-Watson within legs (<see cref="Diagnostics.DurbinWatson.WithinLegs"/>); computed only when <see cref="DiagnosticsOptions.DurbinWatsonOrder"/> asks for it.</summary>
+    /// <summary>Durbin-Watson within legs (<see cref="Diagnostics.DurbinWatson.WithinLegs"/>); computed only when <see cref="DiagnosticsOptions.ComputesDurbinWatson"/> says so.</summary>
     public DurbinWatsonResult? DurbinWatsonPerLeg { get; init; }
 
     /// <summary>The Durbin-Watson test in <paramref name="order"/> (a bug when that order was not computed).</summary>
@@ -88,10 +95,10 @@ public sealed record ResidualDiagnostics(
             fit.InputCount == 1 ? FiguresOfMerit.Compute(fit.Stimulus.AsSpan(), fit.Output.AsSpan(), legs, groups, fit.ResidualSd, options.Nominal) : null)
         {
             RunsPerLeg = RunsTest.PerLeg(residuals, legs),
-            DurbinWatsonByStimulus = options.DurbinWatsonOrder == ResidualOrder.Stimulus
+            DurbinWatsonByStimulus = options.ComputesDurbinWatson(ResidualOrder.Stimulus)
                 ? Diagnostics.DurbinWatson.Compute(residuals, design, ResidualOrders.ByStimulus(fit.Stimulus.AsSpan()))
                 : null,
-            DurbinWatsonPerLeg = options.DurbinWatsonOrder == ResidualOrder.PerLeg
+            DurbinWatsonPerLeg = options.ComputesDurbinWatson(ResidualOrder.PerLeg)
                 ? Diagnostics.DurbinWatson.WithinLegs(residuals, design, ResidualOrders.Legs(legs))
                 : null,
         };

@@ -25,6 +25,13 @@ public enum RunsMethod
 public sealed record RunsTestResult(int Runs, int Positive, int Negative, double Expected, double Variance, double Z, double P, RunsMethod Method)
 {
     public bool IsApplicable => Method != RunsMethod.NotApplicable;
+
+    /// <summary>
+    /// The two-sided mid-p value (Lancaster 1961), the p-value the runs gates judge: for the exact
+    /// method, twice the smaller of P(R &lt; r) + P(R = r) / 2 and P(R &gt; r) + P(R = r) / 2; for the
+    /// normal approximation, which is continuous, <see cref="P"/> itself.
+    /// </summary>
+    public double MidP { get; init; } = P;
 }
 
 /// <summary>
@@ -38,6 +45,12 @@ public sealed record PerLegRunsResult(ImmutableArray<Leg> Legs, ImmutableArray<R
     public bool IsApplicable => Applicable > 0;
 
     public static PerLegRunsResult NotApplicable { get; } = new([], [], double.NaN, double.NaN, 0);
+
+    /// <summary>
+    /// The stratified test within legs (<see cref="RunsTest.Stratified"/>): the legs' run counts
+    /// summed; its mid-p is what the per-leg runs gate judges.
+    /// </summary>
+    public RunsTestResult WithinLegs { get; init; } = new(0, 0, 0, double.NaN, double.NaN, double.NaN, 1.0, RunsMethod.NotApplicable);
 
     /// <summary>The test on one leg, or null when the sweep has no such leg.</summary>
     public RunsTestResult? Of(Leg leg)
@@ -125,9 +138,13 @@ public static class RunsTest
             }
         }
 
+        var all = results.MoveToImmutable();
         return applicable == 0
-            ? new PerLegRunsResult(names.MoveToImmutable(), results.MoveToImmutable(), double.NaN, double.NaN, 0)
-            : new PerLegRunsResult(names.MoveToImmutable(), results.MoveToImmutable(), minP, PerLegRunsResult.Sidak(minP, applicable), applicable);
+            ? new PerLegRunsResult(names.MoveToImmutable(), all, double.NaN, double.NaN, 0)
+            : new PerLegRunsResult(names.MoveToImmutable(), all, minP, PerLegRunsResult.Sidak(minP, applicable), applicable)
+            {
+                WithinLegs = Stratified(all.AsSpan()),
+            };
     }
 
     /// <summary>The test from the counts: <paramref name="runs"/> runs among n1 + n2 signs.</summary>
@@ -144,7 +161,8 @@ public static class RunsTest
         var z = variance > 0 ? (runs - expected) / Math.Sqrt(variance) : 0.0;
         if (n1 <= ExactLimit && n2 <= ExactLimit)
         {
-            return new RunsTestResult(runs, n1, n2, expected, variance, z, ExactTwoSided(runs, n1, n2), RunsMethod.Exact);
+            var (exact, mid) = ExactTwoSided(runs, n1, n2);
+            return new RunsTestResult(runs, n1, n2, expected, variance, z, exact, RunsMethod.Exact) { MidP = mid };
         }
 
         var p = 2.0 * Normal.CDF(0, 1, -Math.Abs(z));
@@ -174,11 +192,149 @@ public static class RunsTest
     }
 
     /// <summary>
-    /// Two-sided exact p-value: twice the smaller tail, at most 1. The probabilities of
-    /// <see cref="Probability"/>, from binomial coefficients by their recurrence C(a, k + 1) =
-    /// C(a, k) (a - k) / (k + 1) (exact integers below 2^53 for counts up to <see cref="ExactLimit"/>).
+    /// The exact two-sided p-value and mid-p of <paramref name="runs"/> runs among n1 + n2 signs
+    /// (<see cref="TwoSided"/>), from the distribution of <see cref="Distribution"/>.
     /// </summary>
-    private static double ExactTwoSided(int runs, int n1, int n2)
+    private static (double P, double MidP) ExactTwoSided(int runs, int n1, int n2)
+    {
+        Span<double> probabilities = stackalloc double[n1 + n2 + 1];
+        Distribution(n1, n2, probabilities);
+        return TwoSided(probabilities, runs);
+    }
+
+    /// <summary>
+    /// Of the distribution P(T = t) = <paramref name="probabilities"/>[t]: twice the smaller tail at
+    /// <paramref name="observed"/>, at most 1; and the two-sided mid-p, twice the smaller of the
+    /// tails with half the observed value's probability each (the two add to 1, so it is at most 1).
+    /// </summary>
+    private static (double P, double MidP) TwoSided(ReadOnlySpan<double> probabilities, int observed)
+    {
+        double lower = 0, upper = 0;
+        for (var t = 0; t < probabilities.Length; t++)
+        {
+            var pr = probabilities[t];
+            if (t <= observed)
+            {
+                lower += pr;
+            }
+
+            if (t >= observed)
+            {
+                upper += pr;
+            }
+        }
+
+        // The mid-p's tails without the observed value's probability, which each takes half of.
+        double below = 0, above = 0;
+        for (var t = 0; t < observed; t++)
+        {
+            below += probabilities[t];
+        }
+
+        for (var t = probabilities.Length - 1; t > observed; t--)
+        {
+            above += probabilities[t];
+        }
+
+        return (Math.Min(1.0, 2.0 * Math.Min(lower, upper)), MidP(below, probabilities[observed], above));
+    }
+
+    private static double MidP(double below, double here, double above) =>
+        Math.Min(1.0, 2.0 * Math.Min(below + (0.5 * here), above + (0.5 * here)));
+
+    /// <summary>
+    /// The stratified runs test over the legs where the test applies: T, the sum of the legs' run
+    /// counts, against its distribution when each leg's signs are in random order given its own sign
+    /// counts and the legs are independent. With every leg's counts at most <see cref="ExactLimit"/>
+    /// the distribution is exact, the convolution of the legs' distributions (Swed and Eisenhart
+    /// 1943), with the exact two-sided p (twice the smaller tail) and the two-sided mid-p (Lancaster
+    /// 1961); otherwise the normal approximation with the summed Wald-Wolfowitz means and variances
+    /// (common practice). <see cref="RunsTestResult.Runs"/>, <see cref="RunsTestResult.Positive"/>,
+    /// <see cref="RunsTestResult.Negative"/>, <see cref="RunsTestResult.Expected"/> and
+    /// <see cref="RunsTestResult.Variance"/> are the legs' sums. Not applicable when no leg is.
+    /// </summary>
+    public static RunsTestResult Stratified(ReadOnlySpan<RunsTestResult> legs)
+    {
+        int runs = 0, positive = 0, negative = 0, top = 0;
+        double expected = 0, variance = 0;
+        var exact = true;
+        var applicable = 0;
+        foreach (var leg in legs)
+        {
+            if (!leg.IsApplicable)
+            {
+                continue;
+            }
+
+            applicable++;
+            runs += leg.Runs;
+            positive += leg.Positive;
+            negative += leg.Negative;
+            expected += leg.Expected;
+            variance += leg.Variance;
+            top += leg.Positive + leg.Negative;
+            exact &= leg.Method == RunsMethod.Exact;
+        }
+
+        if (applicable == 0)
+        {
+            return new RunsTestResult(runs, positive, negative, double.NaN, double.NaN, double.NaN, 1.0, RunsMethod.NotApplicable);
+        }
+
+        var z = variance > 0 ? (runs - expected) / Math.Sqrt(variance) : 0.0;
+        if (!exact)
+        {
+            var normal = Math.Min(1.0, 2.0 * Normal.CDF(0, 1, -Math.Abs(z)));
+            return new RunsTestResult(runs, positive, negative, expected, variance, z, normal, RunsMethod.Normal);
+        }
+
+        // P(T = t), t = 0 .. top, leg by leg; an exact leg has at most 2 ExactLimit signs.
+        Span<double> one = stackalloc double[(2 * ExactLimit) + 1];
+        Span<double> sum = top < 256 ? stackalloc double[top + 1] : new double[top + 1];
+        Span<double> next = top < 256 ? stackalloc double[top + 1] : new double[top + 1];
+        sum.Clear();
+        sum[0] = 1.0;
+        var reach = 0;
+        foreach (var leg in legs)
+        {
+            if (!leg.IsApplicable)
+            {
+                continue;
+            }
+
+            var size = leg.Positive + leg.Negative;
+            var distribution = one[..(size + 1)];
+            Distribution(leg.Positive, leg.Negative, distribution);
+            next[..(reach + size + 1)].Clear();
+            for (var a = 0; a <= reach; a++)
+            {
+                var weight = sum[a];
+                if (weight == 0)
+                {
+                    continue;
+                }
+
+                for (var r = 2; r <= size; r++)
+                {
+                    next[a + r] += weight * distribution[r];
+                }
+            }
+
+            reach += size;
+            next[..(reach + 1)].CopyTo(sum);
+        }
+
+        var (p, mid) = TwoSided(sum[..(reach + 1)], runs);
+        return new RunsTestResult(runs, positive, negative, expected, variance, z, p, RunsMethod.Exact) { MidP = mid };
+    }
+
+    /// <summary>
+    /// P(R = r) for r = 0 .. n1 + n2 into <paramref name="probabilities"/> (n1 + n2 + 1 values, 0
+    /// where r is impossible), for 1 &lt;= n1, n2 &lt;= <see cref="ExactLimit"/>: the even counts
+    /// 2 C(n1 - 1, k - 1) C(n2 - 1, k - 1) and the odd C(n1 - 1, k) C(n2 - 1, k - 1) + C(n1 - 1, k - 1)
+    /// C(n2 - 1, k) over C(n1 + n2, n1) (Swed and Eisenhart 1943, Ann. Math. Statist. 14: 66-87).
+    /// </summary>
+    internal static void Distribution(int n1, int n2, Span<double> probabilities)
     {
         var maxRuns = n1 == n2 ? 2 * n1 : (2 * Math.Min(n1, n2)) + 1;
         var top = Math.Max(n1, n2);
@@ -198,7 +354,7 @@ public static class RunsTest
             total = total * (n2 + i) / i;
         }
 
-        double lower = 0, upper = 0;
+        probabilities.Clear();
         for (var r = 2; r <= maxRuns; r++)
         {
             var k = r / 2;
@@ -213,19 +369,8 @@ public static class RunsTest
                 ways = (a[k] * b[k - 1]) + (a[k - 1] * b[k]);
             }
 
-            var pr = ways / total;
-            if (r <= runs)
-            {
-                lower += pr;
-            }
-
-            if (r >= runs)
-            {
-                upper += pr;
-            }
+            probabilities[r] = ways / total;
         }
-
-        return Math.Min(1.0, 2.0 * Math.Min(lower, upper));
     }
 
     private static double LogBinomial(int n, int k) =>

@@ -16,20 +16,46 @@ namespace StandFit.Core.Evaluation;
 public static class FigureTable
 {
     /// <summary>Figures every fit has, without an uncertainty of their own.</summary>
-    public static readonly ImmutableArray<string> FitFigures = ["residual_sd", "r_squared", "adj_r_squared", "condition_number", "runs_p", "runs_z"];
+    public static readonly ImmutableArray<string> FitFigures = ["residual_sd", "r_squared", "adj_r_squared", "condition_number", "runs_count", "runs_p", "runs_mid_p", "runs_z"];
 
     /// <summary>
     /// The residual diagnostics and figures of merit (docs/diagnostics.md, docs/figures-of-merit.md),
     /// without an uncertainty of their own, so only simple-rule limits apply. A figure the unit's fit
     /// cannot give (no replicates for lof_p, no down leg for hysteresis_pct ...) is absent for that unit.
+    /// Every numeric diagnostic column of the summary is here under its column name (docs/outputs.md),
+    /// but for the outlier's point and file line, which locate a point rather than measure the unit.
     /// </summary>
     public static readonly ImmutableArray<string> DiagnosticFigures =
     [
-        "dw", "dw_p", "lag1_autocorrelation", "ljung_box_p", "lof_f", "lof_p", "curvature_f", "curvature_p",
-        "bp", "bp_p", "sw_w", "sw_p", "ad_astar", "ad_p", "skewness", "excess_kurtosis",
+        "runs_acquisition_count", "runs_acquisition_z", "runs_acquisition_p", "runs_acquisition_mid_p",
+        "runs_up_count", "runs_up_p", "runs_down_count", "runs_down_p", "runs_per_leg_p",
+        "runs_within_legs_count", "runs_within_legs_z", "runs_within_legs_p", "runs_within_legs_mid_p",
+        "dw", "dw_p", "dw_stimulus", "dw_stimulus_p", "dw_per_leg", "dw_per_leg_p",
+        "lag1_autocorrelation", "ljung_box_q", "ljung_box_p", "set_points", "lof_f", "lof_df1", "lof_df2", "lof_p",
+        "curvature_f", "curvature_df", "curvature_p", "bp", "bp_df", "bp_p", "bp_f", "bp_f_p",
+        "sw_w", "sw_p", "ad_a2", "ad_astar", "ad_p", "skewness", "excess_kurtosis",
         "max_abs_rstudent", "outlier_p", "max_leverage", "max_cooks_distance",
         "fso", "nonlinearity_terminal_pct", "nonlinearity_ls_pct", "nonlinearity_minimax_pct", "hysteresis_pct", "nonrepeatability_pct", "llf",
     ];
+
+    /// <summary>
+    /// The Durbin-Watson orders besides acquisition that limits on <paramref name="figures"/> need
+    /// computed (<c>dw_stimulus*</c>: stimulus; <c>dw_per_leg*</c>: per leg), so that a limit on
+    /// them is evaluated whatever order the recipe's Durbin-Watson gate takes.
+    /// </summary>
+    public static IEnumerable<ResidualOrder> DurbinWatsonOrdersNamed(IEnumerable<string> figures)
+    {
+        var names = figures.ToList();
+        if (names.Any(f => f is "dw_stimulus" or "dw_stimulus_p"))
+        {
+            yield return ResidualOrder.Stimulus;
+        }
+
+        if (names.Any(f => f is "dw_per_leg" or "dw_per_leg_p"))
+        {
+            yield return ResidualOrder.PerLeg;
+        }
+    }
 
     /// <summary>Figures of merit against the nominal curve: only with the recipe's <c>nominal</c>.</summary>
     public static readonly ImmutableArray<string> NominalFigures = ["zero_error_pct", "span_error_pct", "max_error_pct"];
@@ -113,9 +139,11 @@ public static class FigureTable
             }
         }
 
+        figures["runs_count"] = new FigureValue("runs_count", runs.Runs, null, null, "");
         if (runs.IsApplicable)
         {
             figures["runs_p"] = new FigureValue("runs_p", runs.P, null, null, "");
+            figures["runs_mid_p"] = new FigureValue("runs_mid_p", runs.MidP, null, null, "");
             figures["runs_z"] = new FigureValue("runs_z", runs.Z, null, null, "");
         }
 
@@ -137,34 +165,82 @@ public static class FigureTable
             }
         }
 
+        void AddRuns(string prefix, RunsTestResult? runs, bool full)
+        {
+            if (runs is { IsApplicable: true } r)
+            {
+                Add(prefix + "_count", r.Runs);
+                Add(prefix + "_p", r.P);
+                if (full)
+                {
+                    Add(prefix + "_z", r.Z);
+                    Add(prefix + "_mid_p", r.MidP);
+                }
+            }
+        }
+
+        // The summary's columns, by the same rules (SummaryRecordFactory): a test that does not apply gives no figure.
+        AddRuns("runs_acquisition", d.RunsByAcquisition, full: true);
+        AddRuns("runs_up", d.RunsPerLeg.Of(Ingest.Leg.Up), full: false);
+        AddRuns("runs_down", d.RunsPerLeg.Of(Ingest.Leg.Down), full: false);
+        if (d.RunsPerLeg.IsApplicable)
+        {
+            Add("runs_per_leg_p", d.RunsPerLeg.P);
+            AddRuns("runs_within_legs", d.RunsPerLeg.WithinLegs, full: true);
+        }
+
         if (d.DurbinWatson.IsApplicable)
         {
             Add("dw", d.DurbinWatson.Statistic);
             Add("dw_p", d.DurbinWatson.P);
         }
 
+        if (d.DurbinWatsonByStimulus is { IsApplicable: true } byStimulus)
+        {
+            Add("dw_stimulus", byStimulus.Statistic);
+            Add("dw_stimulus_p", byStimulus.P);
+        }
+
+        if (d.DurbinWatsonPerLeg is { IsApplicable: true } perLeg)
+        {
+            Add("dw_per_leg", perLeg.Statistic);
+            Add("dw_per_leg_p", perLeg.P);
+        }
+
         if (d.Autocorrelation.IsApplicable)
         {
             Add("lag1_autocorrelation", d.Autocorrelation.Lag1);
+            Add("ljung_box_q", d.Autocorrelation.LjungBoxQ);
             Add("ljung_box_p", d.Autocorrelation.P);
         }
 
+        Add("set_points", d.SetPoints.Count);
         if (d.LackOfFit.IsApplicable)
         {
             Add("lof_f", d.LackOfFit.F);
+            Add("lof_df1", d.LackOfFit.LackDf);
+            Add("lof_df2", d.LackOfFit.PureErrorDf);
             Add("lof_p", d.LackOfFit.P);
         }
 
         if (d.Curvature.IsApplicable)
         {
             Add("curvature_f", d.Curvature.F);
+            Add("curvature_df", d.Curvature.Df);
             Add("curvature_p", d.Curvature.P);
         }
 
         if (d.BreuschPagan.IsApplicable)
         {
             Add("bp", d.BreuschPagan.Statistic);
+            Add("bp_df", d.BreuschPagan.Df);
             Add("bp_p", d.BreuschPagan.P);
+            if (double.IsFinite(d.BreuschPagan.F))
+            {
+                Add("bp_f", d.BreuschPagan.F);
+            }
+
+            Add("bp_f_p", d.BreuschPagan.FP);
         }
 
         if (d.ShapiroWilk.IsApplicable)
@@ -175,6 +251,7 @@ public static class FigureTable
 
         if (d.AndersonDarling.IsApplicable)
         {
+            Add("ad_a2", d.AndersonDarling.A2);
             Add("ad_astar", d.AndersonDarling.AStar);
             Add("ad_p", d.AndersonDarling.P);
         }

@@ -18,7 +18,7 @@ public enum DiagnosticGateKind
     /// <summary>Normality of the residuals, by <see cref="NormalityTest"/>.</summary>
     Normality,
 
-    /// <summary>Breusch-Pagan (Koenker's studentized form).</summary>
+    /// <summary>Breusch-Pagan (Koenker's studentized form), judged by its F form's p (<see cref="BreuschPaganResult.FP"/>).</summary>
     Heteroscedasticity,
 
     /// <summary>Bonferroni test of the largest studentized residual.</summary>
@@ -76,7 +76,7 @@ public sealed record DiagnosticGate
         DiagnosticGateKind.Curvature => d.Curvature.IsApplicable ? d.Curvature.P : null,
         DiagnosticGateKind.Normality when Normality == NormalityTest.ShapiroWilk => d.ShapiroWilk.IsApplicable ? d.ShapiroWilk.P : null,
         DiagnosticGateKind.Normality => d.AndersonDarling.IsApplicable ? d.AndersonDarling.P : null,
-        DiagnosticGateKind.Heteroscedasticity => d.BreuschPagan.IsApplicable ? d.BreuschPagan.P : null,
+        DiagnosticGateKind.Heteroscedasticity => d.BreuschPagan.IsApplicable ? d.BreuschPagan.FP : null,
         _ => d.Outliers.IsApplicable ? d.Outliers.P : null,
     };
 
@@ -98,7 +98,7 @@ public sealed record DiagnosticGate
             DiagnosticGateKind.Curvature => Messages.CurvatureFinding(d.Curvature.NextPower, d.Curvature.F, d.Curvature.Df, p, PValueFloor, below),
             DiagnosticGateKind.Normality when Normality == NormalityTest.ShapiroWilk => Messages.NormalityFinding("Shapiro-Wilk", "W", d.ShapiroWilk.W, p, PValueFloor, below),
             DiagnosticGateKind.Normality => Messages.NormalityFinding("Anderson-Darling", "A*", d.AndersonDarling.AStar, p, PValueFloor, below),
-            DiagnosticGateKind.Heteroscedasticity => Messages.HeteroscedasticityFinding(d.BreuschPagan.Statistic, d.BreuschPagan.Df, p, PValueFloor, below),
+            DiagnosticGateKind.Heteroscedasticity => Messages.HeteroscedasticityFinding(d.BreuschPagan.Statistic, d.BreuschPagan.Df, d.BreuschPagan.F, d.BreuschPagan.FDf2, p, PValueFloor, below),
             _ => Messages.OutlierFinding(
                 d.Outliers.MaxAbsStudentized,
                 d.Outliers.Index + 1,

@@ -7,10 +7,12 @@ namespace StandFit.Core.Judging;
 
 /// <summary>
 /// The residual-structure gate on the runs test: the signs of the residuals in <see cref="Order"/>
-/// (stimulus by default; acquisition; or per leg, each leg in acquisition order, the legs combined
-/// by Šidák's adjustment of the smallest leg p-value) fail the unit when the two-sided p-value is
-/// below <see cref="PValueFloor"/> (0 &lt; floor &lt; 0.5). A p-value at the floor passes; a test
-/// that cannot be made passes with <c>residuals.runs_not_applicable</c>.
+/// (stimulus by default; acquisition; or per leg, each leg in acquisition order, the legs' run
+/// counts summed in the stratified test, <see cref="PerLegRunsResult.WithinLegs"/>) fail the unit
+/// when the two-sided mid-p value (<see cref="RunsTestResult.MidP"/>; the exact test's own p is
+/// discrete and fails about half the units its level says, docs/diagnostics.md) is below
+/// <see cref="PValueFloor"/> (0 &lt; floor &lt; 0.5). A p-value at the floor passes; a test that
+/// cannot be made passes with <c>residuals.runs_not_applicable</c>.
 /// </summary>
 public sealed record RunsGate
 {
@@ -60,9 +62,9 @@ public sealed record RunsGate
             return new Finding(ReasonCodes.RunsNotApplicable.Code, ReasonCodes.RunsNotApplicable.Kind, Messages.RunsNotApplicable(runs.Positive, runs.Negative));
         }
 
-        var structure = runs.P < PValueFloor;
+        var structure = runs.MidP < PValueFloor;
         var code = structure ? ReasonCodes.RunsStructure : ReasonCodes.RunsOk;
-        return new Finding(code.Code, code.Kind, Messages.RunsFinding(runs.Runs, runs.Positive, runs.Negative, runs.Expected, runs.Z, runs.P, MethodName(runs), PValueFloor, structure, order));
+        return new Finding(code.Code, code.Kind, Messages.RunsFinding(runs.Runs, runs.Positive, runs.Negative, runs.Expected, runs.Z, runs.P, runs.MidP, MethodName(runs), PValueFloor, structure, order));
     }
 
     private Finding JudgePerLeg(PerLegRunsResult legs)
@@ -80,9 +82,10 @@ public sealed record RunsGate
             parts.Add(r.IsApplicable ? Messages.RunsLeg(name, r.Runs, r.Positive, r.Negative, r.P) : Messages.RunsLegNotApplicable(name, r.Positive, r.Negative));
         }
 
-        var structure = legs.P < PValueFloor;
+        var within = legs.WithinLegs;
+        var structure = within.MidP < PValueFloor;
         var code = structure ? ReasonCodes.RunsStructure : ReasonCodes.RunsOk;
-        return new Finding(code.Code, code.Kind, Messages.RunsPerLegFinding(string.Join("; ", parts), legs.Applicable, legs.MinP, legs.P, PValueFloor, structure));
+        return new Finding(code.Code, code.Kind, Messages.RunsPerLegFinding(string.Join("; ", parts), legs.Applicable, within.Runs, within.Expected, within.Z, within.P, within.MidP, MethodName(within), PValueFloor, structure));
     }
 
     private static string MethodName(RunsTestResult runs) => runs.Method == RunsMethod.Exact ? "exact" : "normal approximation";

@@ -290,16 +290,24 @@ public static class Messages
         };
     }
 
-    public static string RunsFinding(int runs, int plus, int minus, double expected, double z, double p, string method, double floor, bool structure, string order = "stimulus order") =>
+    /// <summary>
+    /// A runs gate's finding: <paramref name="p"/> is the test's p-value (exact or normal, as
+    /// <paramref name="method"/> says) and <paramref name="judged"/> the mid-p the gate judges (the
+    /// same value for the normal approximation).
+    /// </summary>
+    public static string RunsFinding(int runs, int plus, int minus, double expected, double z, double p, double judged, string method, double floor, bool structure, string order = "stimulus order") =>
         structure
-            ? F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is below the floor {Numbers.Format(floor)}: the residuals have structure")
-            : F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), p = {Numbers.Format(p, 3)} ({method}) is at or above the floor {Numbers.Format(floor)}");
+            ? F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), {RunsP(p, judged, method)} is below the floor {Numbers.Format(floor)}: the residuals have structure")
+            : F($"runs test in {order}: {runs} runs of {plus}+/{minus}- signs (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), {RunsP(p, judged, method)} is at or above the floor {Numbers.Format(floor)}");
 
-    /// <summary>The per-leg runs gate: each leg's runs and p, then the Šidák-combined p judged.</summary>
-    public static string RunsPerLegFinding(string legs, int tested, double minP, double p, double floor, bool structure) =>
+    private static string RunsP(double p, double judged, string method) =>
+        method == "exact" ? F($"exact p = {Numbers.Format(p, 3)}, mid-p = {Numbers.Format(judged, 3)}") : F($"p = {Numbers.Format(judged, 3)} ({method})");
+
+    /// <summary>The per-leg runs gate: each leg's runs and p, then the stratified test within legs, whose mid-p is judged.</summary>
+    public static string RunsPerLegFinding(string legs, int tested, int runs, double expected, double z, double p, double judged, string method, double floor, bool structure) =>
         structure
-            ? F($"runs test per leg ({legs}): smallest p = {Numbers.Format(minP, 3)} of {tested} leg(s), Šidák-adjusted p = {Numbers.Format(p, 3)} is below the floor {Numbers.Format(floor)}: the residuals have structure within a leg")
-            : F($"runs test per leg ({legs}): smallest p = {Numbers.Format(minP, 3)} of {tested} leg(s), Šidák-adjusted p = {Numbers.Format(p, 3)} is at or above the floor {Numbers.Format(floor)}");
+            ? F($"runs test within legs ({legs}): {runs} runs in {tested} leg(s) (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), {RunsP(p, judged, method)} is below the floor {Numbers.Format(floor)}: the residuals have structure within the legs")
+            : F($"runs test within legs ({legs}): {runs} runs in {tested} leg(s) (expected {Numbers.Format(expected, 4)}, z = {Numbers.Format(z, 3)}), {RunsP(p, judged, method)} is at or above the floor {Numbers.Format(floor)}");
 
     /// <summary>One leg's part of <see cref="RunsPerLegFinding"/>.</summary>
     public static string RunsLeg(string leg, int runs, int plus, int minus, double p) =>
@@ -389,10 +397,10 @@ public static class Messages
             ? F($"{test} {statistic} = {Numbers.Format(value, 4)} on the residuals, {Floor(p, floor, below)}: the residuals are not normal (an outlier, a mixture of populations or structure)")
             : F($"{test} {statistic} = {Numbers.Format(value, 4)} on the residuals, {Floor(p, floor, below)}");
 
-    public static string HeteroscedasticityFinding(double bp, int df, double p, double floor, bool below) =>
+    public static string HeteroscedasticityFinding(double bp, int df, double f, int df2, double p, double floor, bool below) =>
         below
-            ? F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, {Floor(p, floor, below)}: the scatter of the residuals changes along the sweep")
-            : F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, {Floor(p, floor, below)}");
+            ? F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, F form {Numbers.Format(f, 4)} on {df} and {df2} df, {Floor(p, floor, below)}: the scatter of the residuals changes along the sweep")
+            : F($"Breusch-Pagan (studentized) BP = {Numbers.Format(bp, 4)} on {df} df, F form {Numbers.Format(f, 4)} on {df} and {df2} df, {Floor(p, floor, below)}");
 
     public static string OutlierFinding(double r, int point, int line, int df, double p, double floor, bool below) =>
         below

@@ -170,6 +170,7 @@ public sealed class Recipe
         SetPointTolerance = SetPointTolerance,
         Nominal = Nominal,
         DurbinWatsonOrder = DiagnosticGates.FirstOrDefault(g => g.Kind == DiagnosticGateKind.DurbinWatson)?.Order ?? Diagnostics.ResidualOrder.Acquisition,
+        AlsoDurbinWatson = [.. Evaluation.FigureTable.DurbinWatsonOrdersNamed(Limits.Select(l => l.Figure))],
     };
 
     /// <summary>The data-quality gates checked before any fit.</summary>

@@ -167,7 +167,7 @@ public sealed class CurveRecord
 public sealed class SummaryRecord
 {
     /// <summary>Bumped whenever a column is added, removed or changes meaning.</summary>
-    public const int CurrentSchemaVersion = 8;
+    public const int CurrentSchemaVersion = 9;
 
     [JsonPropertyName("schema_version")]
     public int SchemaVersion { get; set; } = CurrentSchemaVersion;
@@ -317,6 +317,10 @@ public sealed class SummaryRecord
     [JsonPropertyName("runs_p")]
     public double? RunsP { get; set; }
 
+    /// <summary>The two-sided mid-p of the stimulus-order runs test: what a stimulus-order runs gate judges (schema 9).</summary>
+    [JsonPropertyName("runs_mid_p")]
+    public double? RunsMidP { get; set; }
+
     [JsonPropertyName("runs_method")]
     public string? RunsMethod { get; set; }
 
@@ -329,6 +333,9 @@ public sealed class SummaryRecord
 
     [JsonPropertyName("runs_acquisition_p")]
     public double? RunsAcquisitionP { get; set; }
+
+    [JsonPropertyName("runs_acquisition_mid_p")]
+    public double? RunsAcquisitionMidP { get; set; }
 
     // Residual orders of the gates and the per-leg runs test (schema 8).
 
@@ -351,6 +358,19 @@ public sealed class SummaryRecord
     /// <summary>The legs combined: Šidák's adjustment of the smallest leg p-value.</summary>
     [JsonPropertyName("runs_per_leg_p")]
     public double? RunsPerLegP { get; set; }
+
+    // The stratified runs test within legs, what a per-leg runs gate judges (schema 9).
+    [JsonPropertyName("runs_within_legs_count")]
+    public int? RunsWithinLegsCount { get; set; }
+
+    [JsonPropertyName("runs_within_legs_z")]
+    public double? RunsWithinLegsZ { get; set; }
+
+    [JsonPropertyName("runs_within_legs_p")]
+    public double? RunsWithinLegsP { get; set; }
+
+    [JsonPropertyName("runs_within_legs_mid_p")]
+    public double? RunsWithinLegsMidP { get; set; }
 
     [JsonPropertyName("dw")]
     public double? DurbinWatson { get; set; }
@@ -415,6 +435,13 @@ public sealed class SummaryRecord
 
     [JsonPropertyName("bp_p")]
     public double? BreuschPaganP { get; set; }
+
+    /// <summary>The F form of the Breusch-Pagan statistic and its p, what the heteroscedasticity gate judges (schema 9).</summary>
+    [JsonPropertyName("bp_f")]
+    public double? BreuschPaganF { get; set; }
+
+    [JsonPropertyName("bp_f_p")]
+    public double? BreuschPaganFP { get; set; }
 
     [JsonPropertyName("sw_w")]
     public double? ShapiroWilkW { get; set; }

@@ -45,6 +45,7 @@ public static class SummaryRecordFactory
             RunsCount = unit.Runs?.Runs,
             RunsZ = unit.Runs is { IsApplicable: true } r ? r.Z : null,
             RunsP = unit.Runs?.IsApplicable == true ? unit.Runs.P : null,
+            RunsMidP = unit.Runs?.IsApplicable == true ? unit.Runs.MidP : null,
             RunsMethod = unit.Runs?.Method.ToString().ToLowerInvariant(),
             RunsOrder = recipe?.RunsGate is { } runsGate ? ResidualOrderNames.Name(runsGate.Order) : null,
             DurbinWatsonOrder = recipe?.DiagnosticGates.FirstOrDefault(g => g.Kind == DiagnosticGateKind.DurbinWatson) is { } dwGate ? ResidualOrderNames.Name(dwGate.Order) : null,
@@ -163,7 +164,7 @@ public static class SummaryRecordFactory
         static double? V(double value) => double.IsNaN(value) ? null : value;
         if (d.RunsByAcquisition.IsApplicable)
         {
-            (record.RunsAcquisitionCount, record.RunsAcquisitionZ, record.RunsAcquisitionP) = (d.RunsByAcquisition.Runs, d.RunsByAcquisition.Z, d.RunsByAcquisition.P);
+            (record.RunsAcquisitionCount, record.RunsAcquisitionZ, record.RunsAcquisitionP, record.RunsAcquisitionMidP) = (d.RunsByAcquisition.Runs, d.RunsByAcquisition.Z, d.RunsByAcquisition.P, d.RunsByAcquisition.MidP);
         }
 
         if (d.RunsPerLeg.Of(Leg.Up) is { IsApplicable: true } up)
@@ -179,6 +180,8 @@ public static class SummaryRecordFactory
         if (d.RunsPerLeg.IsApplicable)
         {
             record.RunsPerLegP = d.RunsPerLeg.P;
+            var within = d.RunsPerLeg.WithinLegs;
+            (record.RunsWithinLegsCount, record.RunsWithinLegsZ, record.RunsWithinLegsP, record.RunsWithinLegsMidP) = (within.Runs, within.Z, within.P, within.MidP);
         }
 
         if (d.DurbinWatson.IsApplicable)
@@ -215,6 +218,7 @@ public static class SummaryRecordFactory
         if (d.BreuschPagan.IsApplicable)
         {
             (record.BreuschPagan, record.BreuschPaganDf, record.BreuschPaganP) = (d.BreuschPagan.Statistic, d.BreuschPagan.Df, d.BreuschPagan.P);
+            (record.BreuschPaganF, record.BreuschPaganFP) = (Finite(d.BreuschPagan.F), d.BreuschPagan.FP);
         }
 
         if (d.ShapiroWilk.IsApplicable)

@@ -65,7 +65,7 @@ public static class RecipeSchema
     [
         ("lack_of_fit", "Lack-of-fit F against pure error from replicated set points (see set_points)."),
         ("curvature", "Partial F of the next polynomial power."),
-        ("heteroscedasticity", "Breusch-Pagan, Koenker's studentized form: a residual variance that changes along the sweep."),
+        ("heteroscedasticity", "Breusch-Pagan, Koenker's studentized form, judged by its F form: a residual variance that changes along the sweep."),
         ("outliers", "Bonferroni test of the largest externally studentized residual."),
     ];
 
@@ -229,8 +229,8 @@ public static class RecipeSchema
                     {
                         Children =
                         [
-                            new("p_min", ValueKind.Number, "The unit fails when the two-sided p-value is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true },
-                            new("order", ValueKind.Text, "The order of the residual signs: stimulus (the default; curvature shows as runs), acquisition (drift in time) or per-leg (each leg in acquisition order, the smallest leg p Šidák-adjusted).") { Choices = OrderChoices },
+                            new("p_min", ValueKind.Number, "The unit fails when the two-sided mid-p is below this floor.") { Required = true, Minimum = 0, ExclusiveMinimum = true, Maximum = 0.5, ExclusiveMaximum = true },
+                            new("order", ValueKind.Text, "The order of the residual signs: stimulus (the default; curvature shows as runs), acquisition (drift in time) or per-leg (each leg in acquisition order, the legs' run counts summed in one stratified test).") { Choices = OrderChoices },
                         ],
                     },
                     new("durbin_watson", ValueKind.Map, "Durbin-Watson on the residuals, exact one-sided p (positive autocorrelation).")

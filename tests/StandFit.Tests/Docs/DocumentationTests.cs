@@ -210,6 +210,16 @@ public sealed partial class DocumentationTests(DocumentationTests.DemoOutput dem
     }
 
     [Fact]
+    public void The_figure_table_names_every_diagnostic_and_nominal_figure_a_limit_can_name()
+    {
+        var section = Section(Page("recipes.md"), "### Figures a limit can name");
+        foreach (var name in FigureTable.DiagnosticFigures.Concat(FigureTable.NominalFigures))
+        {
+            Assert.True(section.Contains("`" + name + "`", StringComparison.Ordinal), $"docs/recipes.md, Figures a limit can name, does not list `{name}`.");
+        }
+    }
+
+    [Fact]
     public void The_shipped_recipe_shown_in_the_docs_is_the_file_as_shipped()
     {
         var shown = ShippedRecipeBlock().Matches(Page("recipes.md")).ToList();

@@ -76,7 +76,7 @@ public sealed class ResidualGateBoundaryTests
         Assert.Equal(ReasonKind.Pass, at.Kind);
         Assert.Equal(ReasonCodes.RunsStructure.Code, below.Code);
         Assert.Equal(ReasonKind.Fail, below.Kind);
-        Assert.Contains(order == ResidualOrder.PerLeg ? "per leg" : "in " + orderName + " order", at.Sentence, StringComparison.Ordinal);
+        Assert.Contains(order == ResidualOrder.PerLeg ? "within legs" : "in " + orderName + " order", at.Sentence, StringComparison.Ordinal);
     }
 
     [Theory]
@@ -115,9 +115,10 @@ public sealed class ResidualGateBoundaryTests
 
     private static (RunsTestResult, ResidualDiagnostics) RunsWithP(ResidualOrder order, RunsTestResult stimulus, ResidualDiagnostics d, double p) => order switch
     {
-        ResidualOrder.Stimulus => (stimulus with { P = p }, d),
-        ResidualOrder.Acquisition => (stimulus, d with { RunsByAcquisition = d.RunsByAcquisition with { P = p } }),
-        _ => (stimulus, d with { RunsPerLeg = d.RunsPerLeg with { P = p } }),
+        // The runs gates judge the mid-p; the per-leg gate that of the stratified test within legs.
+        ResidualOrder.Stimulus => (stimulus with { MidP = p }, d),
+        ResidualOrder.Acquisition => (stimulus, d with { RunsByAcquisition = d.RunsByAcquisition with { MidP = p } }),
+        _ => (stimulus, d with { RunsPerLeg = d.RunsPerLeg with { WithinLegs = d.RunsPerLeg.WithinLegs with { MidP = p } } }),
     };
 
     private static DiagnosticGate Gate(string name)
@@ -146,7 +147,7 @@ public sealed class ResidualGateBoundaryTests
             DiagnosticGateKind.Curvature => d with { Curvature = d.Curvature with { P = p } },
             DiagnosticGateKind.Normality when gate.Normality == NormalityTest.ShapiroWilk => d with { ShapiroWilk = d.ShapiroWilk with { P = p } },
             DiagnosticGateKind.Normality => d with { AndersonDarling = d.AndersonDarling with { P = p } },
-            DiagnosticGateKind.Heteroscedasticity => d with { BreuschPagan = d.BreuschPagan with { P = p } },
+            DiagnosticGateKind.Heteroscedasticity => d with { BreuschPagan = d.BreuschPagan with { FP = p } }, // the gate judges the F form
             _ => d with { Outliers = d.Outliers with { P = p } },
         };
         Assert.Equal(p, gate.PValue(result)); // the gate reads the p-value set here, and it applies

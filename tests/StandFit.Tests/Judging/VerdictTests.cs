@@ -94,24 +94,25 @@ public sealed class VerdictTests
     }
 
     [Fact]
-    public void A_runs_p_value_below_the_floor_fails_the_unit_as_residuals_runs_structure()
+    public void A_runs_mid_p_below_the_floor_fails_the_unit_as_residuals_runs_structure_even_when_the_exact_p_is_above_it()
     {
+        // The gate judges the mid-p (docs/diagnostics.md): an exact p of 0.012 with a mid-p of 0.009 fails at 0.01.
         var gate = new RunsGate(0.01);
-        var runs = new RunsTestResult(2, 10, 10, 11, 4.74, -4.13, 0.009, RunsMethod.Exact);
+        var runs = new RunsTestResult(2, 10, 10, 11, 4.74, -4.13, 0.012, RunsMethod.Exact) { MidP = 0.009 };
 
         var finding = gate.Judge(runs);
 
         Assert.Equal("residuals.runs_structure", finding.Code);
         Assert.Equal(ReasonKind.Fail, finding.Kind);
-        Assert.Contains("p = 0.009 (exact) is below the floor 0.01", finding.Sentence, StringComparison.Ordinal);
+        Assert.Contains("exact p = 0.012, mid-p = 0.009 is below the floor 0.01", finding.Sentence, StringComparison.Ordinal);
         Assert.Contains("2 runs of 10+/10- signs", finding.Sentence, StringComparison.Ordinal);
     }
 
     [Fact]
-    public void A_runs_p_value_exactly_at_the_floor_is_ok()
+    public void A_runs_mid_p_exactly_at_the_floor_is_ok()
     {
         var gate = new RunsGate(0.01);
-        var runs = new RunsTestResult(6, 10, 10, 11, 4.74, -2.3, 0.01, RunsMethod.Exact);
+        var runs = new RunsTestResult(6, 10, 10, 11, 4.74, -2.3, 0.02, RunsMethod.Exact) { MidP = 0.01 };
 
         var finding = gate.Judge(runs);
 
@@ -121,10 +122,10 @@ public sealed class VerdictTests
     }
 
     [Fact]
-    public void A_runs_p_value_one_ulp_below_the_floor_is_structure()
+    public void A_runs_mid_p_one_ulp_below_the_floor_is_structure()
     {
         var gate = new RunsGate(0.01);
-        var runs = new RunsTestResult(6, 10, 10, 11, 4.74, -2.3, Math.BitDecrement(0.01), RunsMethod.Exact);
+        var runs = new RunsTestResult(6, 10, 10, 11, 4.74, -2.3, 0.02, RunsMethod.Exact) { MidP = Math.BitDecrement(0.01) };
 
         Assert.Equal("residuals.runs_structure", gate.Judge(runs).Code);
     }
