@@ -151,6 +151,9 @@ internal static class RunCommand
         var rate = wall > TimeSpan.Zero ? units / wall.TotalSeconds : 0;
         error.WriteLine(string.Create(
             CultureInfo.InvariantCulture,
-            $"wall {wall.TotalSeconds:F3} s, {rate:F0} units/s, process CPU {self.TotalProcessorTime.TotalSeconds:F3} s ({(units > 0 ? self.TotalProcessorTime.TotalMicroseconds / units : 0):F0} us/unit), {Environment.ProcessorCount} threads, {(System.Runtime.GCSettings.IsServerGC ? "server" : "workstation")} GC, collections gen0 {GC.CollectionCount(0)} gen1 {GC.CollectionCount(1)} gen2 {GC.CollectionCount(2)}, allocated {GC.GetTotalAllocatedBytes() / 1048576.0:F0} MiB, peak working set {self.PeakWorkingSet64 / 1048576.0:F1} MiB"));
+            $"wall {wall.TotalSeconds:F3} s, {rate:F0} units/s, process CPU {self.TotalProcessorTime.TotalSeconds:F3} s ({(units > 0 ? self.TotalProcessorTime.TotalMicroseconds / units : 0):F0} us/unit), {Environment.ProcessorCount} threads, {(System.Runtime.GCSettings.IsServerGC ? "server" : "workstation")} GC, collections gen0 {GC.CollectionCount(0)} gen1 {GC.CollectionCount(1)} gen2 {GC.CollectionCount(2)}, allocated {GC.GetTotalAllocatedBytes() / 1048576.0:F0} MiB, GC pauses {GC.GetTotalPauseDuration().TotalSeconds:F3} s, peak working set {self.PeakWorkingSet64 / 1048576.0:F1} MiB"));
+        error.WriteLine(string.Create(
+            CultureInfo.InvariantCulture,
+            $"JIT: {System.Runtime.JitInfo.GetCompiledMethodCount()} methods compiled, {System.Runtime.JitInfo.GetCompilationTime().TotalSeconds:F3} s compiling"));
     }
 }

@@ -162,13 +162,13 @@ public sealed partial class ModelExpression
                     scratch[++top * stride] = variables[instruction.Index];
                     continue;
                 case Operation.Parameter:
-                {
-                    var slot = scratch.Slice(++top * stride, stride);
-                    slot.Clear();
-                    slot[0] = parameters[instruction.Index];
-                    slot[1 + instruction.Index] = 1.0;
-                    continue;
-                }
+                    {
+                        var slot = scratch.Slice(++top * stride, stride);
+                        slot.Clear();
+                        slot[0] = parameters[instruction.Index];
+                        slot[1 + instruction.Index] = 1.0;
+                        continue;
+                    }
             }
 
             if (IsBinary(instruction.Operation))
@@ -307,53 +307,53 @@ public sealed partial class ModelExpression
 
                 break;
             case Operation.Divide:
-            {
-                var v = av / bv;
-                a[0] = v;
-                if (left && right)
                 {
-                    for (var j = 0; j < ga.Length; j++)
+                    var v = av / bv;
+                    a[0] = v;
+                    if (left && right)
                     {
-                        ga[j] = (ga[j] - (v * gb[j])) / bv;
+                        for (var j = 0; j < ga.Length; j++)
+                        {
+                            ga[j] = (ga[j] - (v * gb[j])) / bv;
+                        }
                     }
-                }
-                else if (left)
-                {
-                    Scale(ga, ga, 1.0 / bv);
-                }
-                else if (right)
-                {
-                    Scale(ga, gb, -v / bv);
-                }
+                    else if (left)
+                    {
+                        Scale(ga, ga, 1.0 / bv);
+                    }
+                    else if (right)
+                    {
+                        Scale(ga, gb, -v / bv);
+                    }
 
-                break;
-            }
+                    break;
+                }
 
             default:
-            {
-                // a^b: d = b a^(b-1) da + a^b ln(a) db; the ln term only where b moves, and zero where a^b is 0.
-                var v = Math.Pow(av, bv);
-                a[0] = v;
-                var dA = left ? bv * Math.Pow(av, bv - 1.0) : 0.0;
-                var dB = right ? (v == 0.0 ? 0.0 : v * Math.Log(av)) : 0.0;
-                if (left && right)
                 {
-                    for (var j = 0; j < ga.Length; j++)
+                    // a^b: d = b a^(b-1) da + a^b ln(a) db; the ln term only where b moves, and zero where a^b is 0.
+                    var v = Math.Pow(av, bv);
+                    a[0] = v;
+                    var dA = left ? bv * Math.Pow(av, bv - 1.0) : 0.0;
+                    var dB = right ? (v == 0.0 ? 0.0 : v * Math.Log(av)) : 0.0;
+                    if (left && right)
                     {
-                        ga[j] = (dA * ga[j]) + (dB * gb[j]);
+                        for (var j = 0; j < ga.Length; j++)
+                        {
+                            ga[j] = (dA * ga[j]) + (dB * gb[j]);
+                        }
                     }
-                }
-                else if (left)
-                {
-                    Scale(ga, ga, dA);
-                }
-                else if (right)
-                {
-                    Scale(ga, gb, dB);
-                }
+                    else if (left)
+                    {
+                        Scale(ga, ga, dA);
+                    }
+                    else if (right)
+                    {
+                        Scale(ga, gb, dB);
+                    }
 
-                break;
-            }
+                    break;
+                }
         }
     }
 
