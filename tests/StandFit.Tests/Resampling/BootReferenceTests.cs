@@ -19,11 +19,7 @@ public sealed class BootReferenceTests
     private const ulong LineSeed = 424242;  // bench/StandFit.Benchmarks/Fixture.cs, LineStream
     private const ulong LawSeed = 1993;     // Fixture.cs, LawStream
 
-    private static readonly Lazy<Dictionary<string, double>> Reference = new(() =>
-        File.ReadAllLines(Path("boot-reference.csv"))
-            .Where(l => !l.StartsWith('#') && !l.StartsWith("name,", StringComparison.Ordinal))
-            .Select(l => l.Split(','))
-            .ToDictionary(p => p[0], p => double.Parse(p[1], NumberStyles.Float, CultureInfo.InvariantCulture)));
+    private static readonly Lazy<Dictionary<string, double>> Reference = new(() => BootFixtureFiles.NamedValues("boot-reference.csv"));
 
     private static readonly double[] Lsat = [576, 635, 558, 578, 666, 580, 555, 661, 651, 605, 653, 575, 545, 572, 594];
     private static readonly double[] Gpa = [3.39, 3.30, 2.81, 3.03, 3.44, 3.07, 3.00, 3.43, 3.36, 3.13, 3.12, 2.74, 2.76, 2.88, 2.96];
@@ -133,8 +129,7 @@ public sealed class BootReferenceTests
         return (SimulatedUnits.Fit(sweep), sweep);
     }
 
-    private static int[] ReadIndices(string file) =>
-        [.. File.ReadAllLines(Path(file)).SelectMany(l => l.Split(',')).Select(v => int.Parse(v, CultureInfo.InvariantCulture))];
+    private static int[] ReadIndices(string file) => BootFixtureFiles.Indices(file);
 
     private static double Correlation(int[] rows)
     {
@@ -151,5 +146,5 @@ public sealed class BootReferenceTests
         return sxy / Math.Sqrt(sxx * syy);
     }
 
-    private static string Path(string file) => RepoPaths.InRepo("tests", "StandFit.Tests", "Resampling", "Fixtures", file);
+    private static string Path(string file) => BootFixtureFiles.Path(file);
 }

@@ -35,11 +35,7 @@ public sealed class InverseBootReferenceTests
 {
     private const int B = 1000;
 
-    private static readonly Lazy<Dictionary<string, double>> Reference = new(() =>
-        File.ReadAllLines(Path("inverse-boot-reference.csv"))
-            .Where(l => !l.StartsWith('#') && !l.StartsWith("name,", StringComparison.Ordinal))
-            .Select(l => l.Split(','))
-            .ToDictionary(p => p[0], p => double.Parse(p[1], NumberStyles.Float, CultureInfo.InvariantCulture)));
+    private static readonly Lazy<Dictionary<string, double>> Reference = new(() => BootFixtureFiles.NamedValues("inverse-boot-reference.csv"));
 
     private readonly ITestOutputHelper _output;
 
@@ -122,12 +118,12 @@ public sealed class InverseBootReferenceTests
 
     private static int[] ReadIndices(string file, int n)
     {
-        var values = File.ReadAllLines(Path(file)).SelectMany(l => l.Split(',')).Select(v => int.Parse(v, CultureInfo.InvariantCulture)).ToArray();
+        var values = BootFixtureFiles.Indices(file);
         Assert.Equal(B * n, values.Length);
         return values;
     }
 
-    private static string Path(string file) => RepoPaths.InRepo("tests", "StandFit.Tests", "Resampling", "Fixtures", file);
+    private static string Path(string file) => BootFixtureFiles.Path(file);
 
     /// <summary>One dataset, its resampler with the inverse figure last, and the scheme and stream of its index file.</summary>
     private sealed record Case(IResamplerCase Resampler, int Points, int Figure, BootstrapScheme Scheme, ulong Stream, string IndexFile)

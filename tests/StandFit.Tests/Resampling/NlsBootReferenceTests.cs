@@ -42,11 +42,7 @@ public sealed class NlsBootReferenceTests
     private const ulong Chwirut2Stream = 541;  // bench/StandFit.Benchmarks/Fixture.cs, Chwirut2Stream
     private const ulong Misra1aStream = 141;   // Fixture.cs, Misra1aStream
 
-    private static readonly Lazy<Dictionary<string, double>> Reference = new(() =>
-        File.ReadAllLines(Path("nls-boot-reference.csv"))
-            .Where(l => !l.StartsWith('#') && !l.StartsWith("name,", StringComparison.Ordinal))
-            .Select(l => l.Split(','))
-            .ToDictionary(p => p[0], p => double.Parse(p[1], NumberStyles.Float, CultureInfo.InvariantCulture)));
+    private static readonly Lazy<Dictionary<string, double>> Reference = new(() => BootFixtureFiles.NamedValues("nls-boot-reference.csv"));
 
     private readonly ITestOutputHelper _output;
 
@@ -173,10 +169,9 @@ public sealed class NlsBootReferenceTests
 
     private static double Parse(string s) => double.Parse(s, NumberStyles.Float, CultureInfo.InvariantCulture);
 
-    private static int[] ReadIndices(string file) =>
-        [.. File.ReadAllLines(Path(file)).SelectMany(l => l.Split(',')).Select(v => int.Parse(v, CultureInfo.InvariantCulture))];
+    private static int[] ReadIndices(string file) => BootFixtureFiles.Indices(file);
 
-    private static string Path(string file) => RepoPaths.InRepo("tests", "StandFit.Tests", "Resampling", "Fixtures", file);
+    private static string Path(string file) => BootFixtureFiles.Path(file);
 
     /// <summary>One dataset: its expression model fitted from NIST's Start 2, and a resampler of the fit.</summary>
     private sealed record Case(string File, NonlinearFitResult Fit, NonlinearResampler Resampler, BootstrapScheme Scheme, ulong Stream, string IndexFile)

@@ -311,65 +311,7 @@ public sealed partial class ModelExpression
         var gradient = slot.Slice(m, p * m);
         for (var r = 0; r < m; r++)
         {
-            var a = values[r];
-            double value, derivative;
-            switch (instruction.Operation)
-            {
-                case Operation.Negate:
-                    value = -a;
-                    derivative = -1.0;
-                    break;
-                case Operation.PowerInteger:
-                    value = IntegerPower(a, instruction.Index);
-                    derivative = instruction.Index switch
-                    {
-                        0 => 0.0,
-                        1 => 1.0,
-                        2 => 2.0 * a,
-                        -1 => -(value * value),
-                        _ => instruction.Index * IntegerPower(a, instruction.Index - 1),
-                    };
-                    break;
-                case Operation.PowerConstant:
-                    value = Math.Pow(a, instruction.Constant);
-                    derivative = instruction.Constant * Math.Pow(a, instruction.Constant - 1.0);
-                    break;
-                case Operation.Exp:
-                    value = Math.Exp(a);
-                    derivative = value;
-                    break;
-                case Operation.Ln:
-                    value = Math.Log(a);
-                    derivative = 1.0 / a;
-                    break;
-                case Operation.Log10:
-                    value = Math.Log10(a);
-                    derivative = 1.0 / (a * Math.Log(10.0));
-                    break;
-                case Operation.Sqrt:
-                    value = Math.Sqrt(a);
-                    derivative = 0.5 / value;
-                    break;
-                case Operation.Sin:
-                    value = Math.Sin(a);
-                    derivative = Math.Cos(a);
-                    break;
-                case Operation.Cos:
-                    value = Math.Cos(a);
-                    derivative = -Math.Sin(a);
-                    break;
-                case Operation.Tan:
-                    value = Math.Tan(a);
-                    derivative = 1.0 + (value * value);
-                    break;
-                case Operation.Atan:
-                    value = Math.Atan(a);
-                    derivative = 1.0 / (1.0 + (a * a));
-                    break;
-                default:
-                    throw new InvalidOperationException("Not a unary operation: " + instruction.Operation);
-            }
-
+            var value = UnaryValue(instruction, values[r], out var derivative);
             values[r] = value;
             if (active)
             {

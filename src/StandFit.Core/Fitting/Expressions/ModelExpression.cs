@@ -1,4 +1,5 @@
 using System.Collections.Immutable;
+using System.Runtime.CompilerServices;
 
 namespace StandFit.Core.Fitting.Expressions;
 
@@ -357,11 +358,11 @@ public sealed partial class ModelExpression
         }
     }
 
-    /// <summary>slot := f(slot) on value and gradient (chain rule: the gradient times f').</summary>
-    private static void Unary(in Instruction instruction, Span<double> slot)
+    /// <summary>f(a) and f'(a) of a unary instruction: the one definition the per-point and batch evaluators share.</summary>
+    [MethodImpl(MethodImplOptions.AggressiveInlining)]
+    private static double UnaryValue(in Instruction instruction, double a, out double derivative)
     {
-        var a = slot[0];
-        double value, derivative;
+        double value;
         switch (instruction.Operation)
         {
             case Operation.Negate:
@@ -419,6 +420,13 @@ public sealed partial class ModelExpression
                 throw new InvalidOperationException("Not a unary operation: " + instruction.Operation);
         }
 
+        return value;
+    }
+
+    /// <summary>slot := f(slot) on value and gradient (chain rule: the gradient times f').</summary>
+    private static void Unary(in Instruction instruction, Span<double> slot)
+    {
+        var value = UnaryValue(instruction, slot[0], out var derivative);
         slot[0] = value;
         if ((instruction.Activity & Activity.Left) != 0)
         {

@@ -272,17 +272,7 @@ public sealed class LinearResampler : IResampler
     /// </summary>
     public BootstrapCounts Bootstrap(BootstrapScheme scheme, int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices = default)
     {
-        ArgumentOutOfRangeException.ThrowIfLessThan(resamples, 1);
-        if (output.Length < _f * resamples)
-        {
-            throw new ArgumentException("The output buffer holds figures x resamples values.", nameof(output));
-        }
-
-        var record = !recordIndices.IsEmpty;
-        if (record && recordIndices.Length < resamples * _n)
-        {
-            throw new ArgumentException("The index buffer holds resamples x points values.", nameof(recordIndices));
-        }
+        ResampleDraws.CheckBootstrapBuffers(_f, _n, resamples, output, recordIndices);
 
         return scheme switch
         {

@@ -303,16 +303,7 @@ public sealed class NonlinearResampler : IResampler
     /// </summary>
     public BootstrapCounts Bootstrap(BootstrapScheme scheme, int resamples, ref Xoshiro256StarStar rng, Span<double> output, Span<int> recordIndices = default)
     {
-        ArgumentOutOfRangeException.ThrowIfLessThan(resamples, 1);
-        if (output.Length < _f * resamples)
-        {
-            throw new ArgumentException("The output buffer holds figures x resamples values.", nameof(output));
-        }
-
-        if (!recordIndices.IsEmpty && recordIndices.Length < resamples * _n)
-        {
-            throw new ArgumentException("The index buffer holds resamples x points values.", nameof(recordIndices));
-        }
+        ResampleDraws.CheckBootstrapBuffers(_f, _n, resamples, output, recordIndices);
 
         var threshold = Xoshiro256StarStar.RejectionThreshold(_n);
         int good = 0, degenerate = 0, deficient = 0, nonFinite = 0, notConverged = 0, atBound = 0, noRoot = 0, severalRoots = 0;

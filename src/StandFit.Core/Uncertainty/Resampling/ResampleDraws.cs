@@ -33,6 +33,25 @@ internal static class ResampleDraws
     private const double MammenLowChance = 0.7236067977499790; // (sqrt 5 + 1) / (2 sqrt 5)
 
     /// <summary>
+    /// The arguments of <see cref="IResampler.Bootstrap"/> every resampler checks: at least one
+    /// resample, room for figures x resamples outputs and, when indices are recorded, for resamples
+    /// x points indices. A bug in the caller, so it throws.
+    /// </summary>
+    public static void CheckBootstrapBuffers(int figures, int points, int resamples, Span<double> output, Span<int> recordIndices)
+    {
+        ArgumentOutOfRangeException.ThrowIfLessThan(resamples, 1);
+        if (output.Length < figures * resamples)
+        {
+            throw new ArgumentException("The output buffer holds figures x resamples values.", nameof(output));
+        }
+
+        if (!recordIndices.IsEmpty && recordIndices.Length < resamples * points)
+        {
+            throw new ArgumentException("The index buffer holds resamples x points values.", nameof(recordIndices));
+        }
+    }
+
+    /// <summary>
     /// <c>adjusted[i] = e_i / sqrt(1 - h_ii)</c> (0 for a point of leverage 1) and
     /// <c>centred</c> the same minus their mean.
     /// </summary>
